@@ -1,0 +1,28 @@
+import { pgEnum } from 'drizzle-orm/pg-core';
+import { MEASUREMENTS, ROLES, SIDES, STAGES } from '../../../measurements';
+
+export const roleEnum = pgEnum('role', ROLES);
+export const stageEnum = pgEnum('stage', STAGES);
+export const sideEnum = pgEnum('side', SIDES);
+export const measurementEnum = pgEnum('measurement', MEASUREMENTS);
+
+export const HEAD_STATUSES = ['received', 'inspected', 'in_rework', 'final_check', 'released'] as const;
+export const headStatusEnum = pgEnum('head_status', HEAD_STATUSES);
+
+export const LEAK_PATHS = ['none', 'intake', 'exhaust', 'crankcase', 'coolant'] as const;
+export const leakPathEnum = pgEnum('leak_path', LEAK_PATHS);
+
+export const DECISION_KINDS = [
+	'reuse',
+	'lap',
+	'recut_seat',
+	'reface_valve',
+	'replace_valve',
+	'replace_seat',
+	'replace_guide',
+	'knurl_guide'
+] as const;
+export const decisionKindEnum = pgEnum('decision_kind', DECISION_KINDS);
+
+export const BATCH_STATUSES = ['running', 'committed', 'failed', 'undone'] as const;
+export const batchStatusEnum = pgEnum('batch_status', BATCH_STATUSES);

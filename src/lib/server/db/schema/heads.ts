@@ -1,0 +1,119 @@
+import { sql } from 'drizzle-orm';
+import {
+	type AnyPgColumn,
+	check,
+	date,
+	doublePrecision,
+	foreignKey,
+	index,
+	integer,
+	pgTable,
+	smallint,
+	text,
+	timestamp,
+	unique,
+	uuid
+} from 'drizzle-orm/pg-core';
+import { users } from './auth';
+import { decisionKindEnum, headStatusEnum, leakPathEnum, sideEnum } from './enums';
+import { families } from './families';
+import { shops } from './shops';
+
+/** One cylinder head job: the head as it came in, and where it is in the shop. */
+export const heads = pgTable(
+	'heads',
+	{
+		id: uuid().primaryKey().defaultRandom(),
+		shopId: uuid()
+			.notNull()
+			.references(() => shops.id, { onDelete: 'cascade' }),
+		familyId: uuid().notNull(),
+		serial: text().notNull(),
+		customer: text().notNull().default(''),
+		customerEmail: text(),
+		receivedOn: date().notNull(),
+		releasedOn: date(),
+		mileageKm: integer(),
+		engineHours: integer(),
+		complaint: text().notNull().default(''),
+		status: headStatusEnum().notNull().default('received'),
+		/** Set on a job that brings a released head back: the original job. */
+		comebackOf: uuid().references((): AnyPgColumn => heads.id, { onDelete: 'set null' }),
+		/** The import that created this head, so undoing the import can remove it. */
+		createdByBatch: uuid(),
+		createdAt: timestamp({ withTimezone: true }).notNull().defaultNow()
+	},
+	(t) => [
+		foreignKey({
+			name: 'heads_family_fk',
+			columns: [t.shopId, t.familyId],
+			foreignColumns: [families.shopId, families.id]
+		}).onUpdate('cascade'),
+		unique('heads_shop_serial_key').on(t.shopId, t.serial),
+		unique('heads_shop_id_family_key').on(t.shopId, t.id, t.familyId),
+		unique('heads_shop_id_key').on(t.shopId, t.id),
+		index('heads_shop_received_idx').on(t.shopId, t.receivedOn),
+		index('heads_family_idx').on(t.familyId),
+		index('heads_comeback_idx').on(t.comebackOf),
+		check('heads_serial_format', sql`length(trim(${t.serial})) between 1 and 64`),
+		check('heads_mileage_range', sql`${t.mileageKm} is null or ${t.mileageKm} between 0 and 5000000`),
+		check('heads_hours_range', sql`${t.engineHours} is null or ${t.engineHours} between 0 and 500000`),
+		check('heads_released_after_received', sql`${t.releasedOn} is null or ${t.releasedOn} >= ${t.receivedOn}`),
+		check('heads_released_status', sql`(${t.status} = 'released') = (${t.releasedOn} is not null)`),
+		check('heads_not_own_comeback', sql`${t.comebackOf} is null or ${t.comebackOf} <> ${t.id}`)
+	]
+);
+export type Head = typeof heads.$inferSelect;
+
+/** In-vehicle cylinder leakage (leak-down) result that came with the job, per cylinder. */
+export const cylinderLeakage = pgTable(
+	'cylinder_leakage',
+	{
+		id: uuid().primaryKey().defaultRandom(),
+		shopId: uuid().notNull(),
+		headId: uuid().notNull(),
+		cylinder: smallint().notNull(),
+		leakagePct: doublePrecision().notNull(),
+		pressureInKpa: doublePrecision(),
+		pressureHeldKpa: doublePrecision(),
+		leakPath: leakPathEnum().notNull().default('none'),
+		createdAt: timestamp({ withTimezone: true }).notNull().defaultNow()
+	},
+	(t) => [
+		foreignKey({ name: 'cylinder_leakage_head_fk', columns: [t.shopId, t.headId], foreignColumns: [heads.shopId, heads.id] }).onDelete('cascade'),
+		unique('cylinder_leakage_head_cylinder_key').on(t.headId, t.cylinder),
+		check('cylinder_leakage_cylinder_range', sql`${t.cylinder} between 1 and 16`),
+		check('cylinder_leakage_pct_range', sql`${t.leakagePct} between 0 and 100`),
+		check(
+			'cylinder_leakage_pressures',
+			sql`(${t.pressureInKpa} is null and ${t.pressureHeldKpa} is null) or (${t.pressureInKpa} > 0 and ${t.pressureHeldKpa} between 0 and ${t.pressureInKpa})`
+		)
+	]
+);
+
+/** The decision per valve position: what the readings suggested and what a person chose. */
+export const decisions = pgTable(
+	'decisions',
+	{
+		id: uuid().primaryKey().defaultRandom(),
+		shopId: uuid().notNull(),
+		headId: uuid().notNull(),
+		cylinder: smallint().notNull(),
+		side: sideEnum().notNull(),
+		valve: smallint().notNull(),
+		suggested: decisionKindEnum(),
+		rule: text().notNull().default(''),
+		kind: decisionKindEnum().notNull(),
+		note: text().notNull().default(''),
+		decidedBy: text().references(() => users.id, { onDelete: 'set null' }),
+		decidedAt: timestamp({ withTimezone: true }).notNull().defaultNow()
+	},
+	(t) => [
+		foreignKey({ name: 'decisions_head_fk', columns: [t.shopId, t.headId], foreignColumns: [heads.shopId, heads.id] }).onDelete('cascade'),
+		unique('decisions_position_key').on(t.headId, t.cylinder, t.side, t.valve),
+		index('decisions_shop_kind_idx').on(t.shopId, t.kind),
+		check('decisions_cylinder_range', sql`${t.cylinder} between 1 and 16`),
+		check('decisions_valve_range', sql`${t.valve} between 1 and 3`)
+	]
+);
+export type Decision = typeof decisions.$inferSelect;

@@ -1,0 +1,62 @@
+import { sql } from 'drizzle-orm';
+import { check, foreignKey, index, integer, pgTable, text, timestamp, unique, uniqueIndex, uuid } from 'drizzle-orm/pg-core';
+import { users } from './auth';
+import { batchStatusEnum } from './enums';
+import { shops } from './shops';
+
+/** One uploaded file. Its readings are committed together with it or not at all. */
+export const importBatches = pgTable(
+	'import_batches',
+	{
+		id: uuid().primaryKey().defaultRandom(),
+		shopId: uuid()
+			.notNull()
+			.references(() => shops.id, { onDelete: 'cascade' }),
+		fileName: text().notNull(),
+		contentHash: text().notNull(),
+		layout: text().notNull(),
+		onReject: text().notNull(),
+		status: batchStatusEnum().notNull().default('running'),
+		rowsAccepted: integer().notNull().default(0),
+		rowsRejected: integer().notNull().default(0),
+		readings: integer().notNull().default(0),
+		duplicates: integer().notNull().default(0),
+		createdHeads: integer().notNull().default(0),
+		bytes: integer().notNull().default(0),
+		error: text(),
+		createdBy: text().references(() => users.id, { onDelete: 'set null' }),
+		createdAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
+		finishedAt: timestamp({ withTimezone: true })
+	},
+	(t) => [
+		unique('import_batches_shop_id_key').on(t.shopId, t.id),
+		// One committed batch per file content: a second upload of the same bytes is refused.
+		uniqueIndex('import_batches_committed_hash_key').on(t.shopId, t.contentHash).where(sql`${t.status} = 'committed'`),
+		index('import_batches_shop_created_idx').on(t.shopId, t.createdAt),
+		check('import_batches_layout', sql`${t.layout} in ('wide', 'long')`),
+		check('import_batches_on_reject', sql`${t.onReject} in ('abort', 'skip')`),
+		check(
+			'import_batches_counts',
+			sql`${t.rowsAccepted} >= 0 and ${t.rowsRejected} >= 0 and ${t.readings} >= 0 and ${t.duplicates} >= 0 and ${t.createdHeads} >= 0`
+		)
+	]
+);
+export type ImportBatch = typeof importBatches.$inferSelect;
+
+/** Every rejected row of a batch, with its line number, its text and why. */
+export const importRejects = pgTable(
+	'import_rejects',
+	{
+		id: uuid().primaryKey().defaultRandom(),
+		shopId: uuid().notNull(),
+		batchId: uuid().notNull(),
+		line: integer().notNull(),
+		raw: text().notNull(),
+		reason: text().notNull()
+	},
+	(t) => [
+		foreignKey({ name: 'import_rejects_batch_fk', columns: [t.shopId, t.batchId], foreignColumns: [importBatches.shopId, importBatches.id] }).onDelete('cascade'),
+		index('import_rejects_batch_idx').on(t.batchId, t.line),
+		check('import_rejects_line_positive', sql`${t.line} >= 1`)
+	]
+);
