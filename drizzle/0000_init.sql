@@ -283,6 +283,55 @@ CREATE TABLE "audit_log" (
 	CONSTRAINT "audit_log_action" CHECK ("audit_log"."action" in ('create', 'update', 'delete', 'undo', 'override', 'revoke', 'import'))
 );
 --> statement-breakpoint
+CREATE TABLE "mail_outbox" (
+	"id" uuid PRIMARY KEY DEFAULT gen_random_uuid() NOT NULL,
+	"shop_id" uuid,
+	"to" text NOT NULL,
+	"subject" text NOT NULL,
+	"text" text NOT NULL,
+	"html" text,
+	"kind" text NOT NULL,
+	"created_at" timestamp with time zone DEFAULT now() NOT NULL,
+	"sent_at" timestamp with time zone,
+	"attempts" integer DEFAULT 0 NOT NULL,
+	"last_error" text,
+	"next_attempt_at" timestamp with time zone DEFAULT now() NOT NULL,
+	CONSTRAINT "mail_outbox_to_format" CHECK ("mail_outbox"."to" ~ '^[^@\s]+@[^@\s]+$' and length("mail_outbox"."to") <= 254)
+);
+--> statement-breakpoint
+CREATE TABLE "invitations" (
+	"id" uuid PRIMARY KEY DEFAULT gen_random_uuid() NOT NULL,
+	"shop_id" uuid NOT NULL,
+	"email" text NOT NULL,
+	"role" "role" NOT NULL,
+	"token_hash" text NOT NULL,
+	"invited_by" text,
+	"created_at" timestamp with time zone DEFAULT now() NOT NULL,
+	"expires_at" timestamp with time zone NOT NULL,
+	"accepted_at" timestamp with time zone,
+	"revoked_at" timestamp with time zone,
+	CONSTRAINT "invitations_tokenHash_unique" UNIQUE("token_hash")
+);
+--> statement-breakpoint
+CREATE TABLE "password_resets" (
+	"id" uuid PRIMARY KEY DEFAULT gen_random_uuid() NOT NULL,
+	"user_id" text NOT NULL,
+	"token_hash" text NOT NULL,
+	"created_at" timestamp with time zone DEFAULT now() NOT NULL,
+	"expires_at" timestamp with time zone NOT NULL,
+	"used_at" timestamp with time zone,
+	CONSTRAINT "password_resets_tokenHash_unique" UNIQUE("token_hash")
+);
+--> statement-breakpoint
+CREATE TABLE "sign_in_attempts" (
+	"id" uuid PRIMARY KEY DEFAULT gen_random_uuid() NOT NULL,
+	"email" text NOT NULL,
+	"client" text NOT NULL,
+	"at" timestamp with time zone DEFAULT now() NOT NULL,
+	"succeeded" text DEFAULT 'no' NOT NULL,
+	CONSTRAINT "sign_in_attempts_succeeded" CHECK ("sign_in_attempts"."succeeded" in ('yes', 'no'))
+);
+--> statement-breakpoint
 ALTER TABLE "account" ADD CONSTRAINT "account_user_id_user_id_fk" FOREIGN KEY ("user_id") REFERENCES "public"."user"("id") ON DELETE cascade ON UPDATE no action;--> statement-breakpoint
 ALTER TABLE "session" ADD CONSTRAINT "session_user_id_user_id_fk" FOREIGN KEY ("user_id") REFERENCES "public"."user"("id") ON DELETE cascade ON UPDATE no action;--> statement-breakpoint
 ALTER TABLE "memberships" ADD CONSTRAINT "memberships_shop_id_shops_id_fk" FOREIGN KEY ("shop_id") REFERENCES "public"."shops"("id") ON DELETE cascade ON UPDATE no action;--> statement-breakpoint
@@ -306,6 +355,9 @@ ALTER TABLE "readings" ADD CONSTRAINT "readings_batch_fk" FOREIGN KEY ("shop_id"
 ALTER TABLE "api_tokens" ADD CONSTRAINT "api_tokens_shop_id_shops_id_fk" FOREIGN KEY ("shop_id") REFERENCES "public"."shops"("id") ON DELETE cascade ON UPDATE no action;--> statement-breakpoint
 ALTER TABLE "api_tokens" ADD CONSTRAINT "api_tokens_user_id_user_id_fk" FOREIGN KEY ("user_id") REFERENCES "public"."user"("id") ON DELETE cascade ON UPDATE no action;--> statement-breakpoint
 ALTER TABLE "audit_log" ADD CONSTRAINT "audit_log_shop_id_shops_id_fk" FOREIGN KEY ("shop_id") REFERENCES "public"."shops"("id") ON DELETE cascade ON UPDATE no action;--> statement-breakpoint
+ALTER TABLE "invitations" ADD CONSTRAINT "invitations_shop_id_shops_id_fk" FOREIGN KEY ("shop_id") REFERENCES "public"."shops"("id") ON DELETE cascade ON UPDATE no action;--> statement-breakpoint
+ALTER TABLE "invitations" ADD CONSTRAINT "invitations_invited_by_user_id_fk" FOREIGN KEY ("invited_by") REFERENCES "public"."user"("id") ON DELETE set null ON UPDATE no action;--> statement-breakpoint
+ALTER TABLE "password_resets" ADD CONSTRAINT "password_resets_user_id_user_id_fk" FOREIGN KEY ("user_id") REFERENCES "public"."user"("id") ON DELETE cascade ON UPDATE no action;--> statement-breakpoint
 CREATE INDEX "memberships_user_idx" ON "memberships" USING btree ("user_id");--> statement-breakpoint
 CREATE INDEX "limits_lookup_idx" ON "limits" USING btree ("shop_id","family_id","measurement","stage","side","effective_from");--> statement-breakpoint
 CREATE INDEX "decisions_shop_kind_idx" ON "decisions" USING btree ("shop_id","kind");--> statement-breakpoint
@@ -320,4 +372,8 @@ CREATE INDEX "readings_analytics_idx" ON "readings" USING btree ("shop_id","meas
 CREATE INDEX "readings_batch_idx" ON "readings" USING btree ("batch_id");--> statement-breakpoint
 CREATE INDEX "api_tokens_shop_idx" ON "api_tokens" USING btree ("shop_id","created_at");--> statement-breakpoint
 CREATE INDEX "audit_log_shop_at_idx" ON "audit_log" USING btree ("shop_id","at");--> statement-breakpoint
-CREATE INDEX "audit_log_entity_idx" ON "audit_log" USING btree ("shop_id","entity","entity_id");
+CREATE INDEX "audit_log_entity_idx" ON "audit_log" USING btree ("shop_id","entity","entity_id");--> statement-breakpoint
+CREATE INDEX "mail_outbox_pending_idx" ON "mail_outbox" USING btree ("next_attempt_at") WHERE "mail_outbox"."sent_at" is null;--> statement-breakpoint
+CREATE INDEX "invitations_shop_idx" ON "invitations" USING btree ("shop_id","created_at");--> statement-breakpoint
+CREATE INDEX "sign_in_attempts_email_idx" ON "sign_in_attempts" USING btree ("email","at");--> statement-breakpoint
+CREATE INDEX "sign_in_attempts_client_idx" ON "sign_in_attempts" USING btree ("client","at");

@@ -8,3 +8,5 @@ export * from './imports';
 export * from './readings';
 export * from './tokens';
 export * from './audit';
+export * from './mail';
+export * from './access';

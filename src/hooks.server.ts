@@ -1,0 +1,65 @@
+import { error, json, type Handle, type HandleServerError } from '@sveltejs/kit';
+import { sequence } from '@sveltejs/kit/hooks';
+import { handle as authHandle } from './auth';
+import { POLICY, operationOf } from '$lib/server/auth/access';
+import { actorFromBearer, actorFromSession } from '$lib/server/auth/actor';
+import { requireRole, requireUser } from '$lib/server/auth/guards';
+import { startMailRetries } from '$lib/server/mail';
+
+startMailRetries();
+
+/** Password sign-in goes only through the sign-in page's action, which validates and
+ * rate-limits; a direct POST to Auth.js's credentials callback is refused. */
+const closeCredentialsCallback: Handle = ({ event, resolve }) => {
+	if (event.url.pathname.startsWith('/auth/callback/credentials')) {
+		return new Response('Not found', { status: 404 });
+	}
+	return resolve(event);
+};
+
+/** Builds locals.actor from a Bearer token (API only) or the session. */
+const actor: Handle = async ({ event, resolve }) => {
+	event.locals.actor = null;
+	const bearer = event.request.headers.get('authorization');
+	if (bearer && event.url.pathname.startsWith('/api/v1/')) {
+		const result = await actorFromBearer(bearer);
+		if (result && 'error' in result) return json({ message: result.error }, { status: 401 });
+		if (result) event.locals.actor = result.actor;
+	} else {
+		const session = await event.locals.auth();
+		const userId = session?.user?.id;
+		if (userId) event.locals.actor = await actorFromSession(event, userId);
+	}
+	return resolve(event);
+};
+
+/** Applies the access policy (src/lib/server/auth/access.ts) to every routed request. */
+const guard: Handle = async ({ event, resolve }) => {
+	const id = event.route.id;
+	if (!id) return resolve(event); // no route: SvelteKit answers 404
+	const policy = POLICY[id];
+	if (!policy) {
+		console.error(`[guard] route ${id} has no access policy; refusing`);
+		error(403, 'This route has no access policy.');
+	}
+	const isAction = event.request.method === 'POST' && !policy.POST;
+	const op = operationOf(event.request.method, event.url.search, isAction);
+	const access = policy[op];
+	if (!access) {
+		if (event.request.method === 'OPTIONS') return resolve(event);
+		error(405, `${event.request.method} is not allowed here.`);
+	}
+	if (access === 'public') return resolve(event);
+	if (access === 'user') requireUser(event);
+	else requireRole(event, access);
+	return resolve(event);
+};
+
+export const handle = sequence(closeCredentialsCallback, authHandle, actor, guard);
+
+export const handleError: HandleServerError = ({ error: err, event, status, message }) => {
+	const id = crypto.randomUUID();
+	if (status !== 404) console.error(`[error ${id}] ${event.request.method} ${event.url.pathname}`, err);
+	return { message: status === 500 ? 'Something went wrong on our side.' : message, id };
+};
+

@@ -1,0 +1,39 @@
+// The access policy, as data: for every route, each method or form action and the least role
+// that may use it. Pure, so a test can walk src/routes and fail on any route missing here.
+import type { Role } from '$lib/measurements';
+
+/** `public`: anyone; `user`: any signed-in user, shop or not; a role: that role or higher. */
+export type Access = 'public' | 'user' | Role;
+export type Operation = 'GET' | 'POST' | 'PUT' | 'PATCH' | 'DELETE' | `action:${string}`;
+export type RoutePolicy = Partial<Record<Operation, Access>>;
+
+export const ROLE_RANK: Record<Role, number> = { viewer: 0, machinist: 1, engineer: 2, owner: 3 };
+
+export function roleAtLeast(role: Role, least: Role): boolean {
+	return ROLE_RANK[role] >= ROLE_RANK[least];
+}
+
+/** Lower of two roles: a token never carries more than its creator holds today. */
+export function lowerRole(a: Role, b: Role): Role {
+	return ROLE_RANK[a] <= ROLE_RANK[b] ? a : b;
+}
+
+export const POLICY: Record<string, RoutePolicy> = {
+	'/(app)': { GET: 'viewer' },
+	'/(app)/switch-shop': { GET: 'user', 'action:default': 'user' },
+	'/(auth)/signin': { GET: 'public', 'action:password': 'public', 'action:link': 'public' },
+	'/(auth)/signin/check-email': { GET: 'public' },
+	'/(auth)/signout': { GET: 'public', 'action:default': 'user' },
+	'/api/health': { GET: 'public' },
+	'/api/v1/overview': { GET: 'viewer' }
+};
+
+/** Which operation a request is: its method, or `action:<name>` for a form action POST. */
+export function operationOf(method: string, search: string, isPage: boolean): Operation {
+	if (isPage && method === 'POST') {
+		const q = new URLSearchParams(search);
+		for (const key of q.keys()) if (key.startsWith('/')) return `action:${key.slice(1)}`;
+		return 'action:default';
+	}
+	return (method === 'HEAD' ? 'GET' : method) as Operation;
+}

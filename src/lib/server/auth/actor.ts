@@ -1,0 +1,72 @@
+// Who is asking: built once per request from the session cookie or a Bearer token.
+import type { RequestEvent } from '@sveltejs/kit';
+import type { Role } from '$lib/measurements';
+import { db } from '../db';
+import { withSystem } from '../db/scope';
+import { liveTokenByHash, membershipsOf, touchToken, userById, type ShopMembership } from '../queries/memberships';
+import { lowerRole } from './access';
+import { looksLikeApiToken, sha256Hex } from './tokens';
+
+export interface Actor {
+	userId: string;
+	email: string;
+	name: string | null;
+	/** The active shop and the role held there; null when the user belongs to no shop. */
+	shopId: string | null;
+	shopName: string | null;
+	role: Role | null;
+	via: 'session' | 'token';
+	memberships: ShopMembership[];
+}
+
+export const ACTIVE_SHOP_COOKIE = 'lapmark_shop';
+
+export type BearerResult = { actor: Actor } | { error: string } | null;
+
+/** Resolve `Authorization: Bearer lmk_…`. Null when no bearer header was sent. */
+export async function actorFromBearer(header: string | null): Promise<BearerResult> {
+	if (!header) return null;
+	const m = /^Bearer\s+(\S+)$/i.exec(header.trim());
+	if (!m) return { error: 'The Authorization header must be "Bearer <token>".' };
+	const token = m[1];
+	if (!looksLikeApiToken(token)) return { error: 'That is not a Lapmark API token.' };
+	return withSystem(db, async (tx) => {
+		const row = await liveTokenByHash(tx, sha256Hex(token));
+		if (!row || !row.memberRole) return { error: 'The token is unknown, expired or revoked.' };
+		await touchToken(tx, row.id);
+		const role = lowerRole(row.tokenRole, row.memberRole);
+		return {
+			actor: {
+				userId: row.userId,
+				email: row.email,
+				name: row.name,
+				shopId: row.shopId,
+				shopName: row.shopName,
+				role,
+				via: 'token' as const,
+				memberships: [{ shopId: row.shopId, shopName: row.shopName, shopSlug: row.shopSlug, role }]
+			}
+		};
+	});
+}
+
+/** Resolve the signed-in user and the active shop (remembered in a cookie, checked every time). */
+export async function actorFromSession(event: RequestEvent, userId: string): Promise<Actor | null> {
+	return withSystem(db, async (tx) => {
+		const user = await userById(tx, userId);
+		if (!user) return null;
+		const shops = await membershipsOf(tx, userId);
+		const wanted = event.cookies.get(ACTIVE_SHOP_COOKIE);
+		const active = shops.find((s) => s.shopId === wanted) ?? shops[0] ?? null;
+		return {
+			userId: user.id,
+			email: user.email,
+			name: user.name,
+			shopId: active?.shopId ?? null,
+			shopName: active?.shopName ?? null,
+			role: active?.role ?? null,
+			via: 'session' as const,
+			memberships: shops
+		};
+	});
+}

@@ -1,0 +1,29 @@
+import { sql } from 'drizzle-orm';
+import { check, index, integer, pgTable, text, timestamp, uuid } from 'drizzle-orm/pg-core';
+
+/**
+ * Outgoing mail. A message is queued in the same transaction as the change that causes it
+ * and sent after commit; a failed send stays here, shown as not sent, and is retried.
+ */
+export const mailOutbox = pgTable(
+	'mail_outbox',
+	{
+		id: uuid().primaryKey().defaultRandom(),
+		shopId: uuid(),
+		to: text().notNull(),
+		subject: text().notNull(),
+		text: text().notNull(),
+		html: text(),
+		kind: text().notNull(),
+		createdAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
+		sentAt: timestamp({ withTimezone: true }),
+		attempts: integer().notNull().default(0),
+		lastError: text(),
+		nextAttemptAt: timestamp({ withTimezone: true }).notNull().defaultNow()
+	},
+	(t) => [
+		index('mail_outbox_pending_idx').on(t.nextAttemptAt).where(sql`${t.sentAt} is null`),
+		check('mail_outbox_to_format', sql`${t.to} ~ '^[^@\\s]+@[^@\\s]+$' and length(${t.to}) <= 254`)
+	]
+);
+export type MailMessage = typeof mailOutbox.$inferSelect;

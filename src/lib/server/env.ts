@@ -1,0 +1,35 @@
+// The only reader of the private environment. Validated once, when first imported.
+import { building } from '$app/environment';
+import { env as raw } from '$env/dynamic/private';
+import { z } from 'zod';
+
+const schema = z.object({
+	DATABASE_URL: z.string().url({ message: 'DATABASE_URL must be a postgres:// URL' }),
+	AUTH_SECRET: z.string().min(32, 'AUTH_SECRET must be at least 32 characters'),
+	/** SMTP server for outgoing mail; the project's local fake in development and tests. */
+	SMTP_URL: z.string().default('smtp://127.0.0.1:2525'),
+	MAIL_FROM: z.string().default('Lapmark <no-reply@lapmark.example>'),
+	/** Folder where the local fake mail server keeps what it receives (enables /dev/mail). */
+	LAPMARK_MAIL_DIR: z.string().optional(),
+	/** Largest CSV upload accepted, in megabytes. */
+	LAPMARK_UPLOAD_LIMIT_MB: z.coerce.number().positive().default(200),
+	/** Set by `npm start` with demo data: the README's demo tokens are listed on the API page. */
+	/** Failed sign-ins allowed per client address in 15 minutes (per e-mail address: 10). */
+	LAPMARK_SIGNIN_CLIENT_LIMIT: z.coerce.number().int().positive().default(50),
+	LAPMARK_DEMO: z.enum(['0', '1']).default('0'),
+	ORIGIN: z.string().optional()
+});
+
+// While building, SvelteKit loads server modules to analyse them; nothing connects then.
+const parsed = schema.safeParse(
+	building ? { DATABASE_URL: 'postgres://build@127.0.0.1:1/build', AUTH_SECRET: 'x'.repeat(32), ...raw } : raw
+);
+if (!parsed.success) {
+	const problems = parsed.error.issues.map((i) => `${i.path.join('.')}: ${i.message}`).join('; ');
+	throw new Error(`Lapmark's environment is not valid: ${problems}`);
+}
+
+export const env = parsed.data;
+export const uploadLimitBytes = Math.round(env.LAPMARK_UPLOAD_LIMIT_MB * 1024 * 1024);
+export const demoMode = env.LAPMARK_DEMO === '1';
+export const mailFakeDir = env.LAPMARK_MAIL_DIR ?? null;

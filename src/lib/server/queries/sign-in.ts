@@ -1,0 +1,24 @@
+import { and, eq, gt, sql } from 'drizzle-orm';
+import type { Conn } from '../db/scope';
+import { signInAttempts, users } from '../db/schema';
+
+export const SIGN_IN_WINDOW_MINUTES = 15;
+
+export async function failedAttemptsSince(conn: Conn, key: { email?: string; client?: string }): Promise<number> {
+	const since = sql`now() - make_interval(mins => ${SIGN_IN_WINDOW_MINUTES})`;
+	const where = key.email ? eq(signInAttempts.email, key.email) : eq(signInAttempts.client, key.client ?? '');
+	const [row] = await conn
+		.select({ n: sql<number>`count(*)::int` })
+		.from(signInAttempts)
+		.where(and(where, eq(signInAttempts.succeeded, 'no'), gt(signInAttempts.at, since)));
+	return row.n;
+}
+
+export async function recordAttempt(conn: Conn, email: string, client: string, succeeded: boolean) {
+	await conn.insert(signInAttempts).values({ email, client, succeeded: succeeded ? 'yes' : 'no' });
+}
+
+export async function userExists(conn: Conn, email: string): Promise<boolean> {
+	const [row] = await conn.select({ id: users.id }).from(users).where(eq(users.email, email)).limit(1);
+	return Boolean(row);
+}

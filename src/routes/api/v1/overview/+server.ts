@@ -1,0 +1,12 @@
+import { json } from '@sveltejs/kit';
+import { requireRole } from '$lib/server/auth/guards';
+import { db } from '$lib/server/db';
+import { withShop } from '$lib/server/db/scope';
+import { overviewFigures } from '$lib/server/queries/overview';
+import type { RequestHandler } from './$types';
+
+export const GET: RequestHandler = async (event) => {
+	const actor = requireRole(event, 'viewer');
+	const figures = await withShop(db, actor.shopId, (tx) => overviewFigures(tx, actor.shopId));
+	return json(figures);
+};
