@@ -1,0 +1,70 @@
+// Public API of the statistics layer: pure functions over number[] / Float64Array.
+export type { Values } from './input';
+export {
+	addValue,
+	describe,
+	emptyMoments,
+	histogramSorted,
+	lag1Autocorrelation,
+	MAD_SCALE,
+	mergeMoments,
+	momentsOf,
+	momentsToSummary,
+	quantileType7,
+	TUKEY_K,
+	type Fences,
+	type HistogramBin,
+	type Moments,
+	type MomentsSummary,
+	type Quantiles,
+	type Summary
+} from './summary';
+export {
+	MODIFIED_Z_FACTOR,
+	MODIFIED_Z_THRESHOLD,
+	modifiedZ,
+	outlierReasons,
+	percentileRank,
+	tukeyFlag,
+	type OutlierCode,
+	type OutlierInput,
+	type OutlierReason
+} from './robust';
+export {
+	chiSquare2x2,
+	chiSquareTest,
+	compareProportions,
+	fisherExact2x2,
+	MIN_EXPECTED_FOR_CHI_SQUARE,
+	newcombeDifference,
+	wilson,
+	Z95,
+	type ChiSquareResult,
+	type DifferenceInterval,
+	type FisherResult,
+	type ProportionComparison,
+	type Table2x2,
+	type WilsonInterval
+} from './rates';
+export {
+	averageMovingRange,
+	CAPABLE_CPK,
+	capability,
+	capabilityIndices,
+	capabilityVerdict,
+	CONTROL_CHART_CONSTANTS,
+	controlChart,
+	D2_MR,
+	D4_MR,
+	E2_MR,
+	MARGINAL_CPK,
+	type CapabilityIndices,
+	type CapabilityLevel,
+	type CapabilityResult,
+	type CapabilityVerdict,
+	type ChartPoint,
+	type ControlChart,
+	type ControlPoint,
+	type SpecLimits
+} from './capability';
+export { linearFit, type BandPoint, type LinearFit } from './regression';
