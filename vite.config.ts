@@ -13,7 +13,8 @@ export default defineConfig({
 					name: 'unit',
 					include: ['src/**/*.spec.ts'],
 					exclude: ['src/**/*.db.spec.ts'],
-					environment: 'node'
+					environment: 'node',
+					setupFiles: ['tests/setup/fast-check.ts']
 				}
 			},
 			{
@@ -22,6 +23,7 @@ export default defineConfig({
 					name: 'db',
 					include: ['src/**/*.db.spec.ts', 'tests/integration/**/*.spec.ts'],
 					environment: 'node',
+					setupFiles: ['tests/setup/fast-check.ts'],
 					globalSetup: ['tests/setup/db-global.ts'],
 					testTimeout: 60_000,
 					hookTimeout: 120_000
