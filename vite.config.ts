@@ -33,7 +33,7 @@ export default defineConfig({
 				extends: true,
 				test: {
 					name: 'e2e',
-					include: ['tests/e2e/**/*.e2e.ts'],
+					include: ['tests/e2e/**/*.e2e.ts', 'tests/access/**/*.e2e.ts'],
 					environment: 'node',
 					globalSetup: ['tests/setup/server-global.ts'],
 					testTimeout: 120_000,

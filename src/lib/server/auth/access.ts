@@ -7,11 +7,8 @@ export type Access = 'public' | 'user' | Role;
 export type Operation = 'GET' | 'POST' | 'PUT' | 'PATCH' | 'DELETE' | `action:${string}`;
 export type RoutePolicy = Partial<Record<Operation, Access>>;
 
-export const ROLE_RANK: Record<Role, number> = { viewer: 0, machinist: 1, engineer: 2, owner: 3 };
-
-export function roleAtLeast(role: Role, least: Role): boolean {
-	return ROLE_RANK[role] >= ROLE_RANK[least];
-}
+import { ROLE_RANK, roleAtLeast } from '$lib/roles';
+export { ROLE_RANK, roleAtLeast };
 
 /** Lower of two roles: a token never carries more than its creator holds today. */
 export function lowerRole(a: Role, b: Role): Role {
@@ -23,9 +20,24 @@ export const POLICY: Record<string, RoutePolicy> = {
 	'/(app)/switch-shop': { GET: 'user', 'action:default': 'user' },
 	'/(auth)/signin': { GET: 'public', 'action:password': 'public', 'action:link': 'public' },
 	'/(auth)/signin/check-email': { GET: 'public' },
+	'/(auth)/signin/forgot': { GET: 'public', 'action:default': 'public' },
+	'/(auth)/signin/reset/[token]': { GET: 'public', 'action:default': 'public' },
+	'/(auth)/invite/[token]': { GET: 'public', 'action:accept': 'public' },
+	'/(app)/settings/members': {
+		GET: 'owner',
+		'action:invite': 'owner',
+		'action:role': 'owner',
+		'action:remove': 'owner',
+		'action:revokeInvite': 'owner'
+	},
+	'/(app)/settings/tokens': { GET: 'engineer', 'action:create': 'engineer', 'action:revoke': 'engineer' },
+	'/(app)/audit': { GET: 'engineer' },
+	'/(app)/dev/mail': { GET: 'owner' },
+	'/(app)/dev/mail/[id]': { GET: 'owner' },
 	'/(auth)/signout': { GET: 'public', 'action:default': 'user' },
 	'/api/health': { GET: 'public' },
-	'/api/v1/overview': { GET: 'viewer' }
+	'/api/v1/overview': { GET: 'viewer' },
+	'/api/v1/me': { GET: 'viewer' }
 };
 
 /** Which operation a request is: its method, or `action:<name>` for a form action POST. */

@@ -24,7 +24,12 @@ export const load: PageServerLoad = async (event) => {
 	const code = event.url.searchParams.get('error');
 	return {
 		redirectTo,
-		authError: code ? (AUTH_ERRORS[code] ?? 'Sign-in did not work. Try again.') : null
+		authError: code ? (AUTH_ERRORS[code] ?? 'Sign-in did not work. Try again.') : null,
+		notice: event.url.searchParams.has('reset')
+			? 'Your password was changed. Sign in with the new one.'
+			: event.url.searchParams.has('joined')
+				? 'You joined the shop. Sign in to continue.'
+				: null
 	};
 };
 

@@ -1,0 +1,70 @@
+import { and, asc, desc, eq, gt, isNull, sql } from 'drizzle-orm';
+import type { Role } from '$lib/measurements';
+import type { Conn } from '../db/scope';
+import { invitations, memberships, users } from '../db/schema';
+
+export async function listMembers(conn: Conn, shopId: string) {
+	return conn
+		.select({ userId: users.id, name: users.name, email: users.email, role: memberships.role, since: memberships.createdAt })
+		.from(memberships)
+		.innerJoin(users, eq(users.id, memberships.userId))
+		.where(eq(memberships.shopId, shopId))
+		.orderBy(asc(users.email));
+}
+
+export async function memberRole(conn: Conn, shopId: string, userId: string): Promise<Role | null> {
+	const [row] = await conn
+		.select({ role: memberships.role })
+		.from(memberships)
+		.where(and(eq(memberships.shopId, shopId), eq(memberships.userId, userId)))
+		.limit(1);
+	return row?.role ?? null;
+}
+
+/** Owners other than `userId`, locked: the last owner can neither leave nor be demoted. */
+export async function otherOwners(conn: Conn, shopId: string, userId: string): Promise<number> {
+	const rows = await conn.execute<{ user_id: string }>(sql`
+		select user_id from memberships
+		where shop_id = ${shopId} and role = 'owner' and user_id <> ${userId}
+		for update`);
+	return rows.length;
+}
+
+export async function setRole(conn: Conn, shopId: string, userId: string, role: Role) {
+	await conn.update(memberships).set({ role }).where(and(eq(memberships.shopId, shopId), eq(memberships.userId, userId)));
+}
+
+export async function removeMember(conn: Conn, shopId: string, userId: string) {
+	await conn.delete(memberships).where(and(eq(memberships.shopId, shopId), eq(memberships.userId, userId)));
+}
+
+export async function pendingInvitations(conn: Conn, shopId: string) {
+	return conn
+		.select({ id: invitations.id, email: invitations.email, role: invitations.role, createdAt: invitations.createdAt, expiresAt: invitations.expiresAt })
+		.from(invitations)
+		.where(and(eq(invitations.shopId, shopId), isNull(invitations.acceptedAt), isNull(invitations.revokedAt), gt(invitations.expiresAt, sql`now()`)))
+		.orderBy(desc(invitations.createdAt));
+}
+
+export async function createInvitation(conn: Conn, v: { shopId: string; email: string; role: Role; tokenHash: string; invitedBy: string }) {
+	const [row] = await conn
+		.insert(invitations)
+		.values({ ...v, expiresAt: sql`now() + interval '7 days'` })
+		.returning();
+	return row;
+}
+
+export async function revokeInvitation(conn: Conn, shopId: string, id: string) {
+	const rows = await conn
+		.update(invitations)
+		.set({ revokedAt: sql`now()` })
+		.where(and(eq(invitations.shopId, shopId), eq(invitations.id, id), isNull(invitations.acceptedAt), isNull(invitations.revokedAt)))
+		.returning({ id: invitations.id, email: invitations.email });
+	return rows[0] ?? null;
+}
+
+/** An invitation by its secret's hash, whatever its state (the caller explains why it fails). */
+export async function invitationByHash(conn: Conn, tokenHash: string) {
+	const [row] = await conn.select().from(invitations).where(eq(invitations.tokenHash, tokenHash)).limit(1);
+	return row ?? null;
+}

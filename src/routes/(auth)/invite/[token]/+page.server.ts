@@ -1,0 +1,41 @@
+import { fail, redirect } from '@sveltejs/kit';
+import { z } from 'zod';
+import { signIn } from '../../../../auth';
+import { fieldErrors, newPasswordSchema } from '$lib/schemas/auth';
+import { ACTIVE_SHOP_COOKIE } from '$lib/server/auth/actor';
+import { db } from '$lib/server/db';
+import { INVITATION_MESSAGES, acceptInvitation, inspectInvitation } from '$lib/server/services/invitations';
+import type { Actions, PageServerLoad } from './$types';
+
+const accountSchema = z.object({
+	name: z.string().trim().min(1, 'Enter your name.').max(120, 'At most 120 characters.'),
+	password: newPasswordSchema
+});
+
+export const load: PageServerLoad = async ({ params }) => {
+	const inv = await inspectInvitation(db, params.token);
+	if (inv.state !== 'ok') return { invitation: null, problem: INVITATION_MESSAGES[inv.state] };
+	return { invitation: inv, problem: null };
+};
+
+export const actions: Actions = {
+	accept: async (event) => {
+		const form = await event.request.clone().formData();
+		const inv = await inspectInvitation(db, event.params.token);
+		if (inv.state !== 'ok') return fail(410, { errors: { form: INVITATION_MESSAGES[inv.state] } });
+		let account: z.infer<typeof accountSchema> | null = null;
+		if (!inv.hasAccount) {
+			const parsed = accountSchema.safeParse({ name: form.get('name'), password: form.get('password') });
+			if (!parsed.success) return fail(400, { name: String(form.get('name') ?? '').slice(0, 120), errors: fieldErrors(parsed.error) });
+			account = parsed.data;
+		}
+		const result = await acceptInvitation(db, event.params.token, account);
+		if (result.state !== 'ok') {
+			return fail(410, { errors: { form: result.state === 'needs_account' ? 'Choose a name and password.' : INVITATION_MESSAGES[result.state] } });
+		}
+		event.cookies.set(ACTIVE_SHOP_COOKIE, result.shopId, { path: '/', httpOnly: true, sameSite: 'lax', secure: event.url.protocol === 'https:', maxAge: 365 * 24 * 3600 });
+		if (!account) redirect(303, `/signin?joined=1&redirectTo=%2F`);
+		// A new account: sign in with the password just chosen (the form carries email, password).
+		await signIn(event);
+	}
+};

@@ -1,0 +1,113 @@
+// Every route × operation × role against the running app: allowed, sent to sign-in (pages) or
+// 401 (API) when signed out, 403 for a role too low. The table below is written by hand,
+// independently of the policy in src/lib/server/auth/access.ts, and must list every route:
+// adding a route without a line here fails this test.
+import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
+import { ROLES, type Role } from '../../src/lib/measurements';
+import { listRoutes } from '../../src/lib/server/auth/routes';
+import { ROLE_RANK } from '../../src/lib/roles';
+import { testDb } from '../helpers/db';
+import { Client } from '../helpers/http';
+import { shopWithPeople } from '../helpers/people';
+
+type Expect = 'public' | 'user' | Role;
+
+const EXPECTED: Record<string, Record<string, Expect>> = {
+	'/(app)': { GET: 'viewer' },
+	'/(app)/switch-shop': { GET: 'user', 'action:default': 'user' },
+	'/(app)/audit': { GET: 'engineer' },
+	'/(app)/dev/mail': { GET: 'owner' },
+	'/(app)/dev/mail/[id]': { GET: 'owner' },
+	'/(app)/settings/members': { GET: 'owner', 'action:invite': 'owner', 'action:role': 'owner', 'action:remove': 'owner', 'action:revokeInvite': 'owner' },
+	'/(app)/settings/tokens': { GET: 'engineer', 'action:create': 'engineer', 'action:revoke': 'engineer' },
+	'/(auth)/invite/[token]': { GET: 'public', 'action:accept': 'public' },
+	'/(auth)/signin': { GET: 'public', 'action:password': 'public', 'action:link': 'public' },
+	'/(auth)/signin/check-email': { GET: 'public' },
+	'/(auth)/signin/forgot': { GET: 'public', 'action:default': 'public' },
+	'/(auth)/signin/reset/[token]': { GET: 'public', 'action:default': 'public' },
+	'/(auth)/signout': { GET: 'public', 'action:default': 'user' },
+	'/api/health': { GET: 'public' },
+	'/api/v1/me': { GET: 'viewer' },
+	'/api/v1/overview': { GET: 'viewer' }
+};
+
+/** A concrete URL for a route id: groups dropped, parameters filled with harmless values. */
+function urlFor(id: string): string {
+	const path = id
+		.split('/')
+		.filter((seg) => !/^\(.+\)$/.test(seg))
+		.map((seg) => (seg.startsWith('[') ? 'no-such-thing' : seg))
+		.join('/');
+	return path === '' ? '/' : path;
+}
+
+const routes = listRoutes(new URL('../../src/routes', import.meta.url).pathname);
+const baseURL = inject('baseURL');
+const { db, sql } = testDb();
+const clients = {} as Record<Role, Client>;
+
+beforeAll(async () => {
+	const { people } = await shopWithPeople(db, 'access');
+	for (const role of ROLES) {
+		const c = new Client(baseURL);
+		const res = await c.signIn(people[role].email, people[role].password);
+		expect(res.status, `sign-in as ${role}`).toBe(303);
+		expect(c.signedIn, `session cookie for ${role}`).toBe(true);
+		clients[role] = c;
+	}
+});
+afterAll(() => sql.end());
+
+function send(signedIn: Client, id: string, op: string) {
+	// A copy, so that an operation that ends the session (sign-out) leaves the others signed in.
+	const client = new Client(baseURL);
+	client.cookies = new Map(signedIn.cookies);
+	const url = urlFor(id);
+	if (op.startsWith('action:')) {
+		const name = op.slice('action:'.length);
+		return client.request('POST', name === 'default' ? url : `${url}?/${name}`, { form: {} });
+	}
+	return client.request(op, url, { headers: { accept: url.startsWith('/api/') ? 'application/json' : 'text/html' } });
+}
+
+describe('the access table', () => {
+	it('lists every route and every operation of the app', () => {
+		for (const r of routes) {
+			expect(EXPECTED[r.id], `add ${r.id} to EXPECTED in this test`).toBeDefined();
+			for (const op of r.operations) expect(EXPECTED[r.id][op], `add ${r.id} ${op} to EXPECTED`).toBeDefined();
+		}
+		const ids = new Set(routes.map((r) => r.id));
+		for (const id of Object.keys(EXPECTED)) expect(ids.has(id), `${id} is no longer a route`).toBe(true);
+	});
+});
+
+const cases = Object.entries(EXPECTED).flatMap(([id, ops]) => Object.entries(ops).map(([op, least]) => ({ id, op, least })));
+
+describe.each(cases)('$id $op (least: $least)', ({ id, op, least }) => {
+	const isApi = id.startsWith('/api/');
+
+	it('signed out', async () => {
+		const res = await send(new Client(baseURL), id, op);
+		if (least === 'public') {
+			expect(res.status).toBeLessThan(500);
+			expect([401, 403]).not.toContain(res.status);
+		} else if (isApi) {
+			expect(res.status).toBe(401);
+		} else {
+			expect(res.status).toBe(303);
+			expect(res.headers.get('location')).toMatch(/^\/signin\?redirectTo=/);
+		}
+	});
+
+	it.each(ROLES)('as %s', async (role) => {
+		const res = await send(clients[role], id, op);
+		const allowed = least === 'public' || least === 'user' || ROLE_RANK[role] >= ROLE_RANK[least as Role];
+		if (allowed) {
+			expect(res.status, `${role} should be allowed`).toBeLessThan(500);
+			expect([401, 403]).not.toContain(res.status);
+			expect(res.headers.get('location') ?? '').not.toMatch(/^\/signin\?redirectTo/);
+		} else {
+			expect(res.status, `${role} should be refused`).toBe(403);
+		}
+	});
+});
