@@ -42,7 +42,7 @@ fi
 export AUTH_SECRET=${AUTH_SECRET:-test-secret-$(head -c 24 /dev/urandom | base64 | tr -d '\n/+=')}
 npx tsx scripts/migrate.ts || die "migrations failed"
 # The demo shops, smaller: the browser tests sign in as their users.
-npx tsx scripts/seed.ts --if-empty --heads 240 >/dev/null || die "seeding the test database failed"
+npx tsx scripts/seed.ts --if-empty --quiet --heads 240 >/dev/null || die "seeding the test database failed"
 ensure_build || die "the build failed"
 rm -rf "$(app_state_dir)/test-mail"
 start_mail_fake "${LAPMARK_TEST_SMTP_PORT:-2526}" "$(app_state_dir)/test-mail" || die "the fake mail server did not start"
