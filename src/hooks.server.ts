@@ -4,9 +4,16 @@ import { handle as authHandle } from './auth';
 import { POLICY, operationOf } from '$lib/server/auth/access';
 import { actorFromBearer, actorFromSession } from '$lib/server/auth/actor';
 import { requireRole, requireUser } from '$lib/server/auth/guards';
+import { sql } from '$lib/server/db';
 import { startMailRetries } from '$lib/server/mail';
 
 startMailRetries();
+
+// adapter-node closes the HTTP server on SIGTERM/SIGINT, then emits this: close the database
+// pool so the process can exit.
+process.on('sveltekit:shutdown', () => {
+	void sql.end({ timeout: 5 });
+});
 
 /** Password sign-in goes only through the sign-in page's action, which validates and
  * rate-limits; a direct POST to Auth.js's credentials callback is refused. */

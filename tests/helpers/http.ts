@@ -27,6 +27,9 @@ export class Client {
 		if (init.form) {
 			body = new URLSearchParams(init.form);
 			headers['content-type'] = 'application/x-www-form-urlencoded';
+			// As a browser posting a form without JavaScript: SvelteKit answers with a redirect or
+			// a page, not the JSON it gives to enhanced forms.
+			headers.accept ??= 'text/html';
 		} else if (init.json !== undefined) {
 			body = JSON.stringify(init.json);
 			headers['content-type'] = 'application/json';

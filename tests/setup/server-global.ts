@@ -30,7 +30,11 @@ export default async function setup(project: TestProject) {
 	}
 	project.provide('baseURL', baseURL);
 	return async () => {
-		server?.kill('SIGTERM');
-		await new Promise((r) => server?.once('exit', r));
+		if (!server || server.exitCode !== null) return;
+		const exited = new Promise((r) => server?.once('exit', r));
+		server.kill('SIGTERM');
+		const timer = setTimeout(() => server?.kill('SIGKILL'), 10_000);
+		await exited;
+		clearTimeout(timer);
 	};
 }

@@ -37,7 +37,11 @@ export const POLICY: Record<string, RoutePolicy> = {
 	'/(auth)/signout': { GET: 'public', 'action:default': 'user' },
 	'/api/health': { GET: 'public' },
 	'/api/v1/overview': { GET: 'viewer' },
-	'/api/v1/me': { GET: 'viewer' }
+	'/api/v1/me': { GET: 'viewer' },
+	'/api/v1/families': { GET: 'viewer' },
+	'/api/v1/imports': { GET: 'machinist', POST: 'machinist' },
+	'/api/v1/imports/[id]': { GET: 'machinist', DELETE: 'engineer' },
+	'/api/v1/imports/[id]/rejects.csv': { GET: 'machinist' }
 };
 
 /** Which operation a request is: its method, or `action:<name>` for a form action POST. */

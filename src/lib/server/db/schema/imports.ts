@@ -1,5 +1,5 @@
 import { sql } from 'drizzle-orm';
-import { check, foreignKey, index, integer, pgTable, text, timestamp, unique, uniqueIndex, uuid } from 'drizzle-orm/pg-core';
+import { bigint, check, foreignKey, index, integer, jsonb, pgTable, text, timestamp, unique, uniqueIndex, uuid } from 'drizzle-orm/pg-core';
 import { users } from './auth';
 import { batchStatusEnum } from './enums';
 import { shops } from './shops';
@@ -22,7 +22,11 @@ export const importBatches = pgTable(
 		readings: integer().notNull().default(0),
 		duplicates: integer().notNull().default(0),
 		createdHeads: integer().notNull().default(0),
-		bytes: integer().notNull().default(0),
+		bytes: bigint({ mode: 'number' }).notNull().default(0),
+		/** Rows read so far while running, for the progress bar (written from outside the import's transaction). */
+		progressRows: integer().notNull().default(0),
+		/** A reference the uploading page chose, so it can follow progress before the answer comes. */
+		clientRef: text(),
 		error: text(),
 		createdBy: text().references(() => users.id, { onDelete: 'set null' }),
 		createdAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
@@ -58,5 +62,24 @@ export const importRejects = pgTable(
 		foreignKey({ name: 'import_rejects_batch_fk', columns: [t.shopId, t.batchId], foreignColumns: [importBatches.shopId, importBatches.id] }).onDelete('cascade'),
 		index('import_rejects_batch_idx').on(t.batchId, t.line),
 		check('import_rejects_line_positive', sql`${t.line} >= 1`)
+	]
+);
+
+/** A column mapping a person confirmed, remembered for the next file with the same headers. */
+export const importMappings = pgTable(
+	'import_mappings',
+	{
+		id: uuid().primaryKey().defaultRandom(),
+		shopId: uuid()
+			.notNull()
+			.references(() => shops.id, { onDelete: 'cascade' }),
+		signature: text().notNull(),
+		layout: text().notNull(),
+		mapping: jsonb().$type<Record<string, string>>().notNull(),
+		updatedAt: timestamp({ withTimezone: true }).notNull().defaultNow()
+	},
+	(t) => [
+		unique('import_mappings_shop_signature_key').on(t.shopId, t.signature),
+		check('import_mappings_layout', sql`${t.layout} in ('wide', 'long')`)
 	]
 );

@@ -1,0 +1,418 @@
+// The bulk import: stream → parse (papaparse) → check each row → COPY into a staging table →
+// set-based checks and one INSERT … SELECT into readings, all in one transaction. A batch is
+// committed whole or not at all; a crash, a kill or a database restart leaves nothing of it.
+import { once } from 'node:events';
+import { Readable } from 'node:stream';
+import Papa from 'papaparse';
+import type postgres from 'postgres';
+import { planHeader, headerSignature, type HeaderPlan, type Layout } from './header';
+import { checkRow, type FamilyLayout, type RowContext } from './rows';
+import { ImportInputError, textChunks } from './text';
+
+export type OnReject = 'abort' | 'skip';
+
+export interface ImportOptions {
+	shopId: string;
+	actor: { userId: string | null; label: string };
+	fileName: string;
+	layout?: Layout;
+	dryRun: boolean;
+	onReject: OnReject;
+	/** Original header → Lapmark name or `ignore`; when absent, a remembered mapping is used. */
+	mapping?: Record<string, string>;
+	clientRef?: string;
+	limitBytes: number;
+	/** Called after commit, inside nothing: e.g. to refresh summaries. */
+	now?: Date;
+}
+
+export interface RejectSample {
+	line: number;
+	reason: string;
+	raw: string;
+}
+
+export interface ImportResult {
+	batchId: string | null;
+	dryRun: boolean;
+	layout: Layout;
+	accepted: number;
+	rejected: number;
+	readings: number;
+	duplicates: number;
+	createdHeads: number;
+	duplicateOf: string | null;
+	rejects: RejectSample[];
+	bytes: number;
+	seconds: number;
+}
+
+export type ImportOutcome =
+	| { status: 200 | 201; result: ImportResult }
+	| { status: 409; result: ImportResult; message: string }
+	| { status: 422; result: ImportResult; message: string };
+
+const STAGE_COLUMNS =
+	'line, serial, family_id, stage, cylinder, side, valve, measurement, value, measured_at, measured_by, instrument_id, mileage, customer, reason, raw';
+
+/** One field in COPY text format. */
+function esc(v: string | number | null): string {
+	if (v === null) return '\\N';
+	const s = String(v);
+	return /[\\\t\n\r]/.test(s) ? s.replace(/\\/g, '\\\\').replace(/\t/g, '\\t').replace(/\n/g, '\\n').replace(/\r/g, '\\r') : s;
+}
+
+/** The lock a running import holds for its whole transaction; a batch marked running whose lock
+ * is free belongs to an import that died. */
+const LOCK_CLASS = 7_120_426;
+
+class DuplicateFile extends Error {
+	constructor(public batchId: string) {
+		super('duplicate file');
+	}
+}
+
+async function inShop<T>(sql: postgres.Sql, shopId: string, work: (t: postgres.TransactionSql) => Promise<T>): Promise<T> {
+	return sql.begin(async (t) => {
+		await t`select set_config('lapmark.shop_id', ${shopId}, true)`;
+		return work(t);
+	}) as Promise<T>;
+}
+
+async function loadContext(t: postgres.TransactionSql, shopId: string, decimalComma: boolean, now: Date): Promise<RowContext> {
+	const fams = await t<FamilyLayout[]>`
+		select id, code, cylinders, intake_valves as "intakeValves", exhaust_valves as "exhaustValves"
+		from families where shop_id = ${shopId}`;
+	const insts = await t<{ id: string; name: string; serial: string }[]>`select id, name, serial from instruments where shop_id = ${shopId}`;
+	const instruments = new Map<string, string>();
+	for (const i of insts) {
+		instruments.set(i.name.toLowerCase(), i.id);
+		instruments.set(i.serial.toLowerCase(), i.id);
+	}
+	return {
+		families: new Map(fams.map((f) => [f.code.toLowerCase(), f])),
+		instruments,
+		decimalComma,
+		latest: now.getTime() + 5 * 60_000
+	};
+}
+
+/** Delimiter of the header line, as papaparse guesses it (comma, semicolon, tab …). */
+function guessDelimiter(firstChunk: string): string {
+	const firstLine = firstChunk.split(/\r?\n/, 1)[0];
+	const guess = Papa.parse(firstLine, { preview: 1, delimitersToGuess: [',', ';', '\t', '|'] });
+	return guess.meta.delimiter || ',';
+}
+
+export async function runImport(sql: postgres.Sql, body: AsyncIterable<Uint8Array> | Readable, opts: ImportOptions): Promise<ImportOutcome> {
+	const t0 = performance.now();
+	const now = opts.now ?? new Date();
+	const source = textChunks(body, opts.limitBytes);
+	let batchId: string | null = null;
+	let layout: Layout = opts.layout ?? 'wide';
+	const result = (): ImportResult => ({
+		batchId,
+		dryRun: opts.dryRun,
+		layout,
+		accepted: 0,
+		rejected: 0,
+		readings: 0,
+		duplicates: 0,
+		createdHeads: 0,
+		duplicateOf: null,
+		rejects: [],
+		bytes: source.bytes(),
+		seconds: (performance.now() - t0) / 1000
+	});
+
+	if (!opts.dryRun) {
+		const [b] = await inShop(sql, opts.shopId, (t) => t<{ id: string }[]>`
+			insert into import_batches (shop_id, file_name, content_hash, layout, on_reject, status, created_by, client_ref)
+			values (${opts.shopId}, ${opts.fileName.slice(0, 255)}, '', ${layout}, ${opts.onReject}, 'running', ${opts.actor.userId}, ${opts.clientRef ?? null})
+			returning id`);
+		batchId = b.id;
+	}
+
+	try {
+		const outcome = await inShop(sql, opts.shopId, async (t) => {
+			if (batchId) await t`select pg_advisory_xact_lock(${LOCK_CLASS}, hashtext(${batchId}))`;
+			const first = await source.chunks.next();
+			if (first.done || first.value.trim() === '') throw new ImportInputError(422, 'The file is empty.');
+			const delimiter = guessDelimiter(first.value);
+			const ctx = await loadContext(t, opts.shopId, delimiter === ';', now);
+
+			await t.unsafe(`create temp table import_stage (
+				line int not null, serial text, family_id uuid, stage stage, cylinder smallint, side side, valve smallint,
+				measurement measurement, value double precision, measured_at timestamptz, measured_by text,
+				instrument_id uuid, mileage integer, customer text, reason text, raw text, bad boolean not null default false
+			) on commit drop`);
+
+			const parser = Papa.parse(Papa.NODE_STREAM_INPUT, { delimiter, skipEmptyLines: 'greedy', header: false }) as unknown as NodeJS.ReadWriteStream;
+			const feed = Readable.from(
+				(async function* () {
+					yield first.value;
+					for await (const c of source.chunks) yield c;
+				})(),
+				{ objectMode: false, encoding: 'utf8' }
+			);
+			feed.on('error', (e) => parser.emit('error', e));
+			feed.pipe(parser);
+
+			const writable = await t.unsafe(`copy import_stage (${STAGE_COLUMNS}) from stdin`).writable();
+			let copyError: Error | null = null;
+			writable.on('error', (e) => (copyError = e));
+			let buf = '';
+			const flush = async () => {
+				if (!buf) return;
+				const ok = writable.write(buf);
+				buf = '';
+				if (!ok) await once(writable, 'drain');
+			};
+
+			let plan: HeaderPlan | null = null;
+			let line = 0;
+			let rows = 0;
+			for await (const cells of parser as AsyncIterable<string[]>) {
+				line++;
+				if (copyError) throw copyError;
+				if (!plan) {
+					const mapping = opts.mapping ?? (await rememberedMapping(t, opts.shopId, cells));
+					const header = planHeader(cells, opts.layout, mapping ?? {});
+					layout = header.ok ? header.plan.layout : header.layout;
+					if (!header.ok) {
+						throw new ImportInputError(422, header.errors.join(' '), { headers: header.headers, unmatched: header.unmatched, layout: header.layout });
+					}
+					plan = header.plan;
+					if (opts.mapping && Object.keys(opts.mapping).length) await rememberMapping(t, opts.shopId, cells, plan.layout, opts.mapping);
+					continue;
+				}
+				rows++;
+				const r = checkRow(cells, plan, ctx);
+				if (r.ok) {
+					const g = r.row;
+					const prefix = `${line}\t${esc(g.serial)}\t${g.family.id}\t${g.stage}\t${g.cylinder}\t${g.side}\t${g.valve}\t`;
+					const suffix = `\t${g.measuredAt}\t${esc(g.measuredBy)}\t${esc(g.instrumentId)}\t${esc(g.mileageKm)}\t${esc(g.customer)}\t\\N\t\\N\n`;
+					for (const m of g.readings) buf += `${prefix}${m.measurement}\t${m.value}${suffix}`;
+				} else {
+					const raw = Papa.unparse([cells], { delimiter, newline: '' });
+					buf += `${line}\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t${esc(r.reason)}\t${esc(raw.slice(0, 4000))}\n`;
+				}
+				if (buf.length > 1 << 18) await flush();
+				if (batchId && rows % 25_000 === 0) void sql`update import_batches set progress_rows = ${rows} where id = ${batchId}`.catch(() => {});
+			}
+			await flush();
+			writable.end();
+			await once(writable, 'finish');
+			if (copyError) throw copyError;
+			if (!plan) throw new ImportInputError(422, 'The file is empty.');
+			if (rows === 0) throw new ImportInputError(422, 'The file has a header but no rows.');
+
+			const hash = source.hash();
+			if (batchId) {
+				const [dup] = await t<{ id: string }[]>`
+					select id from import_batches where shop_id = ${opts.shopId} and content_hash = ${hash} and status = 'committed' limit 1`;
+				if (dup) throw new DuplicateFile(dup.id);
+			}
+			return finish(t, opts, { batchId, hash, layout: plan.layout, bytes: source.bytes(), delimiter, t0 });
+		});
+		return outcome;
+	} catch (e) {
+		if (e instanceof DryRunOutcome) return e.outcome;
+		if (e instanceof DuplicateFile) {
+			await markFailed(sql, opts.shopId, batchId, 'This file was imported before; nothing was imported again.');
+			const r = result();
+			r.duplicateOf = e.batchId;
+			return { status: 409, result: r, message: `This file was already imported (batch ${e.batchId}).` };
+		}
+		const message =
+			e instanceof ImportInputError
+				? e.message
+				: isAbort(e)
+					? 'The upload was interrupted before the end of the file; nothing was imported.'
+					: `The import failed: ${e instanceof Error ? e.message : String(e)}. Nothing was imported.`;
+		await markFailed(sql, opts.shopId, batchId, message).catch(() => {});
+		throw e instanceof ImportInputError ? e : isAbort(e) ? new ImportInputError(400, message) : e;
+	}
+}
+
+class DryRunOutcome extends Error {
+	constructor(public outcome: ImportOutcome) {
+		super('dry run');
+	}
+}
+
+function isAbort(e: unknown): boolean {
+	const err = e as { code?: string; name?: string; message?: string };
+	return err?.code === 'ECONNRESET' || err?.name === 'AbortError' || /aborted|terminated|premature close/i.test(err?.message ?? '');
+}
+
+async function markFailed(sql: postgres.Sql, shopId: string, batchId: string | null, message: string) {
+	if (!batchId) return;
+	await inShop(sql, shopId, (t) => t`
+		update import_batches set status = 'failed', error = ${message}, finished_at = now()
+		where id = ${batchId} and status = 'running'`);
+}
+
+async function rememberedMapping(t: postgres.TransactionSql, shopId: string, headers: string[]) {
+	const [row] = await t<{ mapping: Record<string, string> }[]>`
+		select mapping from import_mappings where shop_id = ${shopId} and signature = ${headerSignature(headers)}`;
+	return row?.mapping ?? null;
+}
+
+async function rememberMapping(t: postgres.TransactionSql, shopId: string, headers: string[], layout: Layout, mapping: Record<string, string>) {
+	await t`
+		insert into import_mappings (shop_id, signature, layout, mapping)
+		values (${shopId}, ${headerSignature(headers)}, ${layout}, ${t.json(mapping)})
+		on conflict (shop_id, signature) do update set mapping = excluded.mapping, layout = excluded.layout, updated_at = now()`;
+}
+
+interface FinishInfo {
+	batchId: string | null;
+	hash: string;
+	layout: Layout;
+	bytes: number;
+	delimiter: string;
+	t0: number;
+}
+
+/** Everything after the file is staged: checks across rows, then the writes. */
+async function finish(t: postgres.TransactionSql, opts: ImportOptions, info: FinishInfo): Promise<ImportOutcome> {
+	const { shopId } = opts;
+	// The same reading twice in the file: the later row is rejected whole.
+	await t.unsafe(`
+		with k as (
+			select line, min(line) over (partition by serial, stage, cylinder, side, valve, measurement, measured_at) as first_line
+			from import_stage where reason is null
+		), d as (select line, min(first_line) as first_line from k where line <> first_line group by line)
+		update import_stage s set reason = 'the same reading as line ' || d.first_line || ' (duplicate key in the file)'
+		from d where s.line = d.line`);
+	// A head that exists already keeps its family.
+	await t`
+		update import_stage s set reason = 'head ' || s.serial || ' is a ' || f.code || ' head, not ' || sf.code
+		from heads h join families f on f.id = h.family_id, families sf
+		where h.shop_id = ${shopId} and h.serial = s.serial and s.reason is null
+			and sf.id = s.family_id and h.family_id <> s.family_id`;
+	// Rows rejected above lost their text: give them a plain rendering of what was read.
+	await t`
+		update import_stage set raw = concat_ws(${info.delimiter}, serial, stage, cylinder, side, valve, measurement, value, measured_at, measured_by)
+		where reason is not null and raw is null`;
+	// A row is rejected whole: flag every reading of a row that has any reason.
+	await t`update import_stage set bad = true where line in (select line from import_stage where reason is not null)`;
+	await t`analyze import_stage`;
+
+	const [counts] = await t<{ accepted: number; rejected: number; candidates: number }[]>`
+		select count(distinct line) filter (where not bad)::int as accepted,
+			count(distinct line) filter (where bad)::int as rejected,
+			count(*) filter (where not bad)::int as candidates
+		from import_stage`;
+	const rejects = await t<RejectSample[]>`
+		select distinct on (line) line, reason, raw from import_stage where reason is not null order by line limit 50`;
+
+	const base: ImportResult = {
+		batchId: info.batchId,
+		dryRun: opts.dryRun,
+		layout: info.layout,
+		accepted: counts.accepted,
+		rejected: counts.rejected,
+		readings: 0,
+		duplicates: 0,
+		createdHeads: 0,
+		duplicateOf: null,
+		rejects,
+		bytes: info.bytes,
+		seconds: 0
+	};
+	const aborting = counts.rejected > 0 && opts.onReject === 'abort';
+
+	if (opts.dryRun) {
+		// What would be stored: readings not already there.
+		const [would] = await t<{ readings: number; heads: number }[]>`
+			select count(*) filter (where r.id is null)::int as readings,
+				count(distinct s.serial) filter (where h.id is null)::int as heads
+			from import_stage s
+			left join heads h on h.shop_id = ${shopId} and h.serial = s.serial
+			left join readings r on r.head_id = h.id and r.stage = s.stage and r.cylinder = s.cylinder and r.side = s.side
+				and r.valve = s.valve and r.measurement = s.measurement and r.measured_at = s.measured_at
+			where not s.bad`;
+		base.readings = would.readings;
+		base.duplicates = counts.candidates - would.readings;
+		base.createdHeads = would.heads;
+		base.seconds = (performance.now() - info.t0) / 1000;
+		throw new DryRunOutcome({ status: 200, result: base });
+	}
+
+	const batchId = info.batchId!;
+	await t`
+		insert into import_rejects (shop_id, batch_id, line, raw, reason)
+		select distinct on (line) ${shopId}::uuid, ${batchId}::uuid, line, coalesce(raw, ''), reason
+		from import_stage where reason is not null order by line`;
+
+	if (aborting) {
+		const message = `${counts.rejected} row${counts.rejected === 1 ? '' : 's'} rejected; nothing was imported (rejected rows abort this import).`;
+		await t`
+			update import_batches set status = 'failed', error = ${message}, content_hash = ${info.hash}, rows_accepted = ${counts.accepted},
+				rows_rejected = ${counts.rejected}, bytes = ${info.bytes}, progress_rows = ${counts.accepted + counts.rejected}, finished_at = now()
+			where id = ${batchId}`;
+		base.seconds = (performance.now() - info.t0) / 1000;
+		return { status: 422, result: base, message };
+	}
+
+	// Heads that do not exist yet, from the identity columns of their first good row.
+	const created = await t`
+		insert into heads (shop_id, family_id, serial, customer, received_on, mileage_km, status, created_by_batch)
+		select ${shopId}::uuid, g.family_id, g.serial, coalesce(g.customer, ''), g.received_on, g.mileage,
+			case when g.has_final then 'final_check'::head_status else 'inspected'::head_status end, ${batchId}::uuid
+		from (
+			select serial, (array_agg(family_id order by line))[1] as family_id, (array_agg(customer order by line))[1] as customer,
+				(array_agg(mileage order by line))[1] as mileage, min(measured_at)::date as received_on, bool_or(stage = 'final') as has_final
+			from import_stage where not bad group by serial
+		) g
+		where not exists (select 1 from heads h where h.shop_id = ${shopId} and h.serial = g.serial)`;
+	const inserted = await t`
+		insert into readings (shop_id, head_id, family_id, stage, cylinder, side, valve, measurement, value, measured_at, measured_by, instrument_id, batch_id)
+		select ${shopId}::uuid, h.id, h.family_id, s.stage, s.cylinder, s.side, s.valve, s.measurement, s.value, s.measured_at, s.measured_by, s.instrument_id, ${batchId}::uuid
+		from import_stage s
+		join heads h on h.shop_id = ${shopId} and h.serial = s.serial
+		where not s.bad
+		on conflict on constraint readings_identity_key do nothing`;
+
+	base.readings = inserted.count;
+	base.duplicates = counts.candidates - inserted.count;
+	base.createdHeads = created.count;
+	await t`
+		update import_batches set status = 'committed', content_hash = ${info.hash}, layout = ${info.layout},
+			rows_accepted = ${counts.accepted}, rows_rejected = ${counts.rejected}, readings = ${base.readings},
+			duplicates = ${base.duplicates}, created_heads = ${base.createdHeads}, bytes = ${info.bytes},
+			progress_rows = ${counts.accepted + counts.rejected}, finished_at = now()
+		where id = ${batchId}`;
+	await t`
+		insert into audit_log (shop_id, actor_user_id, actor_label, entity, entity_id, action, after)
+		values (${shopId}, ${opts.actor.userId}, ${opts.actor.label}, 'import', ${batchId}, 'import',
+			${t.json({ fileName: opts.fileName, accepted: counts.accepted, rejected: counts.rejected, readings: base.readings, duplicates: base.duplicates, createdHeads: base.createdHeads })})`;
+	base.seconds = (performance.now() - info.t0) / 1000;
+	return { status: 201, result: base };
+}
+
+/** Marks batches whose import died (server killed, database restarted) as failed. */
+export async function reapDeadImports(sql: postgres.Sql): Promise<number> {
+	const stale = await sql.begin(async (t) => {
+		await t`select set_config('lapmark.system', 'on', true)`;
+		return t<{ id: string; shop_id: string }[]>`
+			select id, shop_id from import_batches where status = 'running' and created_at < now() - interval '1 minute'`;
+	});
+	let reaped = 0;
+	for (const b of stale) {
+		const done = await sql.begin(async (t) => {
+			await t`select set_config('lapmark.shop_id', ${b.shop_id}, true)`;
+			const [{ free }] = await t<{ free: boolean }[]>`select pg_try_advisory_xact_lock(${LOCK_CLASS}, hashtext(${b.id})) as free`;
+			if (!free) return 0;
+			const r = await t`
+				update import_batches set status = 'failed', finished_at = now(),
+					error = 'The import stopped before it finished (the server or the database restarted). Nothing from it was stored.'
+				where id = ${b.id} and status = 'running'`;
+			return r.count;
+		});
+		reaped += done;
+	}
+	return reaped;
+}
