@@ -6,7 +6,10 @@ cd "$(dirname "$0")/.."
 . scripts/common.sh
 
 MAIL_PID=
-RESULTS="$(app_state_dir)/vitest-results.json"
+# LAPMARK_TEST_DB names the test database (default lapmark_test); two checkouts sharing one
+# cluster (LAPMARK_DATA_DIR) run side by side with different names and ports.
+TEST_DB=${LAPMARK_TEST_DB:-lapmark_test}
+RESULTS="$(app_state_dir)/vitest-$TEST_DB.json"
 
 cleanup() {
 	[ -n "$MAIL_PID" ] && kill -TERM "$MAIL_PID" 2>/dev/null && wait "$MAIL_PID" 2>/dev/null
@@ -35,8 +38,8 @@ if [ -z "${DATABASE_URL:-}" ]; then
 	pg_ensure_installed && pg_init || die "PostgreSQL could not be set up"
 	if ! pg_running; then pg_start || die "PostgreSQL did not start"; export LAPMARK_PG_STARTED=1; fi
 	# A fresh test database each run: tests never see leftovers, and never the demo database.
-	pg_drop_database lapmark_test >/dev/null && pg_ensure_database lapmark_test || die "could not create the test database"
-	DATABASE_URL=$(pg_url lapmark_test)
+	pg_drop_database "$TEST_DB" >/dev/null && pg_ensure_database "$TEST_DB" || die "could not create the test database"
+	DATABASE_URL=$(pg_url "$TEST_DB")
 	export DATABASE_URL
 fi
 export AUTH_SECRET=${AUTH_SECRET:-test-secret-$(head -c 24 /dev/urandom | base64 | tr -d '\n/+=')}
@@ -44,8 +47,8 @@ npx tsx scripts/migrate.ts || die "migrations failed"
 # The demo shops, smaller: the browser tests sign in as their users.
 npx tsx scripts/seed.ts --if-empty --quiet --heads 240 >/dev/null || die "seeding the test database failed"
 ensure_build || die "the build failed"
-rm -rf "$(app_state_dir)/test-mail"
-start_mail_fake "${LAPMARK_TEST_SMTP_PORT:-2526}" "$(app_state_dir)/test-mail" || die "the fake mail server did not start"
+rm -rf "$(app_state_dir)/mail-$TEST_DB"
+start_mail_fake "${LAPMARK_TEST_SMTP_PORT:-2526}" "$(app_state_dir)/mail-$TEST_DB" || die "the fake mail server did not start"
 log "set-up took $(( $(date +%s) - T0 )) s"
 
 rm -f "$RESULTS"
