@@ -97,11 +97,31 @@ async function loadContext(t: postgres.TransactionSql, shopId: string, decimalCo
 	};
 }
 
-/** Delimiter of the header line, as papaparse guesses it (comma, semicolon, tab …). */
-function guessDelimiter(firstChunk: string): string {
-	const firstLine = firstChunk.split(/\r?\n/, 1)[0];
-	const guess = Papa.parse(firstLine, { preview: 1, delimitersToGuess: [',', ';', '\t', '|'] });
-	return guess.meta.delimiter || ',';
+const DELIMITERS = [',', ';', '\t', '|'];
+
+/** The delimiter, as papaparse guesses it from the first lines; with a single line, the
+ * candidate that splits the header most (papaparse needs two rows to compare). */
+function guessDelimiter(start: string): string {
+	const lines = start.split(/\r?\n/).slice(0, 10);
+	if (lines.length > 2) {
+		const guess = Papa.parse(lines.join('\n'), { preview: 10, delimitersToGuess: DELIMITERS });
+		if (guess.meta.delimiter && DELIMITERS.includes(guess.meta.delimiter)) return guess.meta.delimiter;
+	}
+	const header = lines[0];
+	const counts = DELIMITERS.map((d) => header.split(d).length);
+	const best = Math.max(...counts);
+	return best > 1 ? DELIMITERS[counts.indexOf(best)] : ',';
+}
+
+/** Enough of the start of the file to see its delimiter: a few lines, or all of a small file. */
+async function readStart(chunks: AsyncGenerator<string>): Promise<string> {
+	let text = '';
+	while (text.length < 65_536 && (text.match(/\n/g)?.length ?? 0) < 5) {
+		const next = await chunks.next();
+		if (next.done) break;
+		text += next.value;
+	}
+	return text;
 }
 
 export async function runImport(sql: postgres.Sql, body: AsyncIterable<Uint8Array> | Readable, opts: ImportOptions): Promise<ImportOutcome> {
@@ -136,9 +156,9 @@ export async function runImport(sql: postgres.Sql, body: AsyncIterable<Uint8Arra
 	try {
 		const outcome = await inShop(sql, opts.shopId, async (t) => {
 			if (batchId) await t`select pg_advisory_xact_lock(${LOCK_CLASS}, hashtext(${batchId}))`;
-			const first = await source.chunks.next();
-			if (first.done || first.value.trim() === '') throw new ImportInputError(422, 'The file is empty.');
-			const delimiter = guessDelimiter(first.value);
+			const start = await readStart(source.chunks);
+			if (start.trim() === '') throw new ImportInputError(422, 'The file is empty.');
+			const delimiter = guessDelimiter(start);
 			const ctx = await loadContext(t, opts.shopId, delimiter === ';', now);
 
 			await t.unsafe(`create temp table import_stage (
@@ -147,10 +167,10 @@ export async function runImport(sql: postgres.Sql, body: AsyncIterable<Uint8Arra
 				instrument_id uuid, mileage integer, customer text, reason text, raw text, bad boolean not null default false
 			) on commit drop`);
 
-			const parser = Papa.parse(Papa.NODE_STREAM_INPUT, { delimiter, skipEmptyLines: 'greedy', header: false }) as unknown as NodeJS.ReadWriteStream;
+			const parser = Papa.parse(Papa.NODE_STREAM_INPUT, { delimiter, skipEmptyLines: false, header: false }) as unknown as NodeJS.ReadWriteStream;
 			const feed = Readable.from(
 				(async function* () {
-					yield first.value;
+					yield start;
 					for await (const c of source.chunks) yield c;
 				})(),
 				{ objectMode: false, encoding: 'utf8' }
@@ -158,7 +178,23 @@ export async function runImport(sql: postgres.Sql, body: AsyncIterable<Uint8Arra
 			feed.on('error', (e) => parser.emit('error', e));
 			feed.pipe(parser);
 
-			const writable = await t.unsafe(`copy import_stage (${STAGE_COLUMNS}) from stdin`).writable();
+			// The header first: planning it may query the database, which cannot happen while the
+			// connection is in COPY mode.
+			const rowsIn = (parser as AsyncIterable<string[]>)[Symbol.asyncIterator]();
+			const head = await rowsIn.next();
+			if (head.done) throw new ImportInputError(422, 'The file is empty.');
+			const mapping = opts.mapping ?? (await rememberedMapping(t, opts.shopId, head.value));
+			const header = planHeader(head.value, opts.layout, mapping ?? {});
+			layout = header.ok ? header.plan.layout : header.layout;
+			if (!header.ok) {
+				throw new ImportInputError(422, header.errors.join(' '), { headers: header.headers, unmatched: header.unmatched, layout: header.layout });
+			}
+			const plan: HeaderPlan = header.plan;
+			if (opts.mapping && Object.keys(opts.mapping).length) await rememberMapping(t, opts.shopId, head.value, plan.layout, opts.mapping);
+
+			const copyQuery = t.unsafe(`copy import_stage (${STAGE_COLUMNS}) from stdin`);
+			const writable = await copyQuery.writable();
+			copyQuery.catch(() => {}); // its failure is seen through the stream
 			let copyError: Error | null = null;
 			writable.on('error', (e) => (copyError = e));
 			let buf = '';
@@ -169,44 +205,39 @@ export async function runImport(sql: postgres.Sql, body: AsyncIterable<Uint8Arra
 				if (!ok) await once(writable, 'drain');
 			};
 
-			let plan: HeaderPlan | null = null;
-			let line = 0;
-			let rows = 0;
-			for await (const cells of parser as AsyncIterable<string[]>) {
-				line++;
-				if (copyError) throw copyError;
-				if (!plan) {
-					const mapping = opts.mapping ?? (await rememberedMapping(t, opts.shopId, cells));
-					const header = planHeader(cells, opts.layout, mapping ?? {});
-					layout = header.ok ? header.plan.layout : header.layout;
-					if (!header.ok) {
-						throw new ImportInputError(422, header.errors.join(' '), { headers: header.headers, unmatched: header.unmatched, layout: header.layout });
+			try {
+				let line = 1;
+				let rows = 0;
+				for (let next = await rowsIn.next(); !next.done; next = await rowsIn.next()) {
+					const cells = next.value;
+					line++; // blank lines are kept by the parser so line numbers match the file
+					if (copyError) throw copyError;
+					if (cells.length === 1 && cells[0].trim() === '') continue;
+					rows++;
+					const r = checkRow(cells, plan, ctx);
+					if (r.ok) {
+						const g = r.row;
+						const prefix = `${line}\t${esc(g.serial)}\t${g.family.id}\t${g.stage}\t${g.cylinder}\t${g.side}\t${g.valve}\t`;
+						const suffix = `\t${g.measuredAt}\t${esc(g.measuredBy)}\t${esc(g.instrumentId)}\t${esc(g.mileageKm)}\t${esc(g.customer)}\t\\N\t\\N\n`;
+						for (const m of g.readings) buf += `${prefix}${m.measurement}\t${m.value}${suffix}`;
+					} else {
+						const raw = Papa.unparse([cells], { delimiter, newline: '' });
+						buf += `${line}\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t${esc(r.reason)}\t${esc(raw.slice(0, 4000))}\n`;
 					}
-					plan = header.plan;
-					if (opts.mapping && Object.keys(opts.mapping).length) await rememberMapping(t, opts.shopId, cells, plan.layout, opts.mapping);
-					continue;
+					if (buf.length > 1 << 18) await flush();
+					if (batchId && rows % 25_000 === 0) void sql`update import_batches set progress_rows = ${rows} where id = ${batchId}`.catch(() => {});
 				}
-				rows++;
-				const r = checkRow(cells, plan, ctx);
-				if (r.ok) {
-					const g = r.row;
-					const prefix = `${line}\t${esc(g.serial)}\t${g.family.id}\t${g.stage}\t${g.cylinder}\t${g.side}\t${g.valve}\t`;
-					const suffix = `\t${g.measuredAt}\t${esc(g.measuredBy)}\t${esc(g.instrumentId)}\t${esc(g.mileageKm)}\t${esc(g.customer)}\t\\N\t\\N\n`;
-					for (const m of g.readings) buf += `${prefix}${m.measurement}\t${m.value}${suffix}`;
-				} else {
-					const raw = Papa.unparse([cells], { delimiter, newline: '' });
-					buf += `${line}\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t${esc(r.reason)}\t${esc(raw.slice(0, 4000))}\n`;
-				}
-				if (buf.length > 1 << 18) await flush();
-				if (batchId && rows % 25_000 === 0) void sql`update import_batches set progress_rows = ${rows} where id = ${batchId}`.catch(() => {});
-			}
-			await flush();
-			writable.end();
-			await once(writable, 'finish');
-			if (copyError) throw copyError;
-			if (!plan) throw new ImportInputError(422, 'The file is empty.');
-			if (rows === 0) throw new ImportInputError(422, 'The file has a header but no rows.');
+				await flush();
+				writable.end();
+				await once(writable, 'finish');
+				if (copyError) throw copyError;
+				if (rows === 0) throw new ImportInputError(422, 'The file has a header but no rows.');
 
+			} catch (e) {
+				// End the COPY with an error so the connection leaves COPY mode and can roll back.
+				writable.destroy(e instanceof Error ? e : new Error(String(e)));
+				throw e;
+			}
 			const hash = source.hash();
 			if (batchId) {
 				const [dup] = await t<{ id: string }[]>`
@@ -262,7 +293,7 @@ async function rememberedMapping(t: postgres.TransactionSql, shopId: string, hea
 async function rememberMapping(t: postgres.TransactionSql, shopId: string, headers: string[], layout: Layout, mapping: Record<string, string>) {
 	await t`
 		insert into import_mappings (shop_id, signature, layout, mapping)
-		values (${shopId}, ${headerSignature(headers)}, ${layout}, ${t.json(mapping)})
+		values (${shopId}, ${headerSignature(headers)}, ${layout}, ${JSON.stringify(mapping)}::jsonb)
 		on conflict (shop_id, signature) do update set mapping = excluded.mapping, layout = excluded.layout, updated_at = now()`;
 }
 
@@ -388,17 +419,17 @@ async function finish(t: postgres.TransactionSql, opts: ImportOptions, info: Fin
 	await t`
 		insert into audit_log (shop_id, actor_user_id, actor_label, entity, entity_id, action, after)
 		values (${shopId}, ${opts.actor.userId}, ${opts.actor.label}, 'import', ${batchId}, 'import',
-			${t.json({ fileName: opts.fileName, accepted: counts.accepted, rejected: counts.rejected, readings: base.readings, duplicates: base.duplicates, createdHeads: base.createdHeads })})`;
+			${JSON.stringify({ fileName: opts.fileName, accepted: counts.accepted, rejected: counts.rejected, readings: base.readings, duplicates: base.duplicates, createdHeads: base.createdHeads })}::jsonb)`;
 	base.seconds = (performance.now() - info.t0) / 1000;
 	return { status: 201, result: base };
 }
 
 /** Marks batches whose import died (server killed, database restarted) as failed. */
-export async function reapDeadImports(sql: postgres.Sql): Promise<number> {
+export async function reapDeadImports(sql: postgres.Sql, graceSeconds = 60): Promise<number> {
 	const stale = await sql.begin(async (t) => {
 		await t`select set_config('lapmark.system', 'on', true)`;
 		return t<{ id: string; shop_id: string }[]>`
-			select id, shop_id from import_batches where status = 'running' and created_at < now() - interval '1 minute'`;
+			select id, shop_id from import_batches where status = 'running' and created_at < now() - make_interval(secs => ${graceSeconds})`;
 	});
 	let reaped = 0;
 	for (const b of stale) {
