@@ -22,7 +22,7 @@ const schema = z.object({
 
 // While building, SvelteKit loads server modules to analyse them; nothing connects then.
 const parsed = schema.safeParse(
-	building ? { DATABASE_URL: 'postgres://build@127.0.0.1:1/build', AUTH_SECRET: 'x'.repeat(32), ...raw } : raw
+	building ? { ...raw, DATABASE_URL: raw.DATABASE_URL || 'postgres://build@127.0.0.1:1/build', AUTH_SECRET: raw.AUTH_SECRET || 'x'.repeat(32) } : raw
 );
 if (!parsed.success) {
 	const problems = parsed.error.issues.map((i) => `${i.path.join('.')}: ${i.message}`).join('; ');
