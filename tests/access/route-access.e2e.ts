@@ -32,7 +32,9 @@ const EXPECTED: Record<string, Record<string, Expect>> = {
 	'/api/v1/families': { GET: 'viewer' },
 	'/api/v1/imports': { GET: 'machinist', POST: 'machinist' },
 	'/api/v1/imports/[id]': { GET: 'machinist', DELETE: 'engineer' },
-	'/api/v1/imports/[id]/rejects.csv': { GET: 'machinist' }
+	'/api/v1/imports/[id]/rejects.csv': { GET: 'machinist' },
+	'/api/v1/imports/headers': { POST: 'machinist' },
+	'/(app)/imports': { GET: 'machinist', 'action:undo': 'engineer' }
 };
 
 /** A concrete URL for a route id: groups dropped, parameters filled with harmless values. */

@@ -41,7 +41,9 @@ export const POLICY: Record<string, RoutePolicy> = {
 	'/api/v1/families': { GET: 'viewer' },
 	'/api/v1/imports': { GET: 'machinist', POST: 'machinist' },
 	'/api/v1/imports/[id]': { GET: 'machinist', DELETE: 'engineer' },
-	'/api/v1/imports/[id]/rejects.csv': { GET: 'machinist' }
+	'/api/v1/imports/[id]/rejects.csv': { GET: 'machinist' },
+	'/api/v1/imports/headers': { POST: 'machinist' },
+	'/(app)/imports': { GET: 'machinist', 'action:undo': 'engineer' }
 };
 
 /** Which operation a request is: its method, or `action:<name>` for a form action POST. */

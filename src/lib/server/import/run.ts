@@ -6,7 +6,7 @@ import { Readable } from 'node:stream';
 import Papa from 'papaparse';
 import type postgres from 'postgres';
 import { planHeader, headerSignature, type HeaderPlan, type Layout } from './header';
-import { checkRow, type FamilyLayout, type RowContext } from './rows';
+import { checkRow, type FamilyLayout, type GoodRow, type RowContext } from './rows';
 import { ImportInputError, textChunks } from './text';
 
 export type OnReject = 'abort' | 'skip';
@@ -32,6 +32,22 @@ export interface RejectSample {
 	raw: string;
 }
 
+/** Milliseconds spent in each phase, for the benchmark and the batch's record. */
+export type Timings = Record<string, number>;
+
+function timer() {
+	const timings: Timings = {};
+	let last = performance.now();
+	return {
+		timings,
+		mark(label: string) {
+			const now = performance.now();
+			timings[label] = Math.round((timings[label] ?? 0) + now - last);
+			last = now;
+		}
+	};
+}
+
 export interface ImportResult {
 	batchId: string | null;
 	dryRun: boolean;
@@ -45,6 +61,7 @@ export interface ImportResult {
 	rejects: RejectSample[];
 	bytes: number;
 	seconds: number;
+	timings?: Timings;
 }
 
 export type ImportOutcome =
@@ -53,7 +70,7 @@ export type ImportOutcome =
 	| { status: 422; result: ImportResult; message: string };
 
 const STAGE_COLUMNS =
-	'line, serial, family_id, stage, cylinder, side, valve, measurement, value, measured_at, measured_by, instrument_id, mileage, customer, reason, raw';
+	'line, serial, family_id, stage, cylinder, side, valve, measurement, value, measured_at, measured_by, instrument_id, mileage, customer, reason, raw, known, dup';
 
 /** One field in COPY text format. */
 function esc(v: string | number | null): string {
@@ -128,6 +145,7 @@ export async function runImport(sql: postgres.Sql, body: AsyncIterable<Uint8Arra
 	const t0 = performance.now();
 	const now = opts.now ?? new Date();
 	const source = textChunks(body, opts.limitBytes);
+	const tm = timer();
 	let batchId: string | null = null;
 	let layout: Layout = opts.layout ?? 'wide';
 	const result = (): ImportResult => ({
@@ -164,7 +182,8 @@ export async function runImport(sql: postgres.Sql, body: AsyncIterable<Uint8Arra
 			await t.unsafe(`create temp table import_stage (
 				line int not null, serial text, family_id uuid, stage stage, cylinder smallint, side side, valve smallint,
 				measurement measurement, value double precision, measured_at timestamptz, measured_by text,
-				instrument_id uuid, mileage integer, customer text, reason text, raw text, bad boolean not null default false
+				instrument_id uuid, mileage integer, customer text, reason text, raw text,
+				known boolean not null default false, dup boolean not null default false, bad boolean not null default false
 			) on commit drop`);
 
 			const parser = Papa.parse(Papa.NODE_STREAM_INPUT, { delimiter, skipEmptyLines: false, header: false }) as unknown as NodeJS.ReadWriteStream;
@@ -192,6 +211,8 @@ export async function runImport(sql: postgres.Sql, body: AsyncIterable<Uint8Arra
 			const plan: HeaderPlan = header.plan;
 			if (opts.mapping && Object.keys(opts.mapping).length) await rememberMapping(t, opts.shopId, head.value, plan.layout, opts.mapping);
 
+			// Every query before the COPY: the connection takes none while it is in COPY mode.
+			const known = await knownSerials(t, opts.shopId);
 			const copyQuery = t.unsafe(`copy import_stage (${STAGE_COLUMNS}) from stdin`);
 			const writable = await copyQuery.writable();
 			copyQuery.catch(() => {}); // its failure is seen through the stream
@@ -205,6 +226,8 @@ export async function runImport(sql: postgres.Sql, body: AsyncIterable<Uint8Arra
 				if (!ok) await once(writable, 'drain');
 			};
 
+			const seen = new KeySieve();
+			const tally: Tally = { goodRows: 0, badRows: 0, goodReadings: 0, dupCandidates: 0, newHeads: new Map() };
 			try {
 				let line = 1;
 				let rows = 0;
@@ -217,12 +240,23 @@ export async function runImport(sql: postgres.Sql, body: AsyncIterable<Uint8Arra
 					const r = checkRow(cells, plan, ctx);
 					if (r.ok) {
 						const g = r.row;
+						const isKnown = known.has(g.serial);
+						if (!isKnown) noteNewHead(tally.newHeads, g, line);
+						tally.goodRows++;
+						tally.goodReadings += g.readings.length;
+						const keyPrefix = `${g.serial}\u0000${g.stage}\u0000${g.cylinder}\u0000${g.side}\u0000${g.valve}\u0000${g.measuredAt}\u0000`;
 						const prefix = `${line}\t${esc(g.serial)}\t${g.family.id}\t${g.stage}\t${g.cylinder}\t${g.side}\t${g.valve}\t`;
-						const suffix = `\t${g.measuredAt}\t${esc(g.measuredBy)}\t${esc(g.instrumentId)}\t${esc(g.mileageKm)}\t${esc(g.customer)}\t\\N\t\\N\n`;
-						for (const m of g.readings) buf += `${prefix}${m.measurement}\t${m.value}${suffix}`;
+						const suffix = `\t${g.measuredAt}\t${esc(g.measuredBy)}\t${esc(g.instrumentId)}\t${esc(g.mileageKm)}\t${esc(g.customer)}\t\\N\t\\N\t${isKnown ? 't' : 'f'}\t`;
+						for (const m of g.readings) {
+							// A key seen before (or a rare hash collision) is checked exactly in SQL.
+							const dup = seen.add(keyPrefix + m.measurement);
+							if (dup) tally.dupCandidates++;
+							buf += `${prefix}${m.measurement}\t${m.value}${suffix}${dup ? 't' : 'f'}\n`;
+						}
 					} else {
+						tally.badRows++;
 						const raw = Papa.unparse([cells], { delimiter, newline: '' });
-						buf += `${line}\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t${esc(r.reason)}\t${esc(raw.slice(0, 4000))}\n`;
+						buf += `${line}\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t${esc(r.reason)}\t${esc(raw.slice(0, 4000))}\tf\tf\n`;
 					}
 					if (buf.length > 1 << 18) await flush();
 					if (batchId && rows % 25_000 === 0) void sql`update import_batches set progress_rows = ${rows} where id = ${batchId}`.catch(() => {});
@@ -232,19 +266,19 @@ export async function runImport(sql: postgres.Sql, body: AsyncIterable<Uint8Arra
 				await once(writable, 'finish');
 				if (copyError) throw copyError;
 				if (rows === 0) throw new ImportInputError(422, 'The file has a header but no rows.');
-
 			} catch (e) {
 				// End the COPY with an error so the connection leaves COPY mode and can roll back.
 				writable.destroy(e instanceof Error ? e : new Error(String(e)));
 				throw e;
 			}
+			tm.mark('stream_parse_check_copy');
 			const hash = source.hash();
 			if (batchId) {
 				const [dup] = await t<{ id: string }[]>`
 					select id from import_batches where shop_id = ${opts.shopId} and content_hash = ${hash} and status = 'committed' limit 1`;
 				if (dup) throw new DuplicateFile(dup.id);
 			}
-			return finish(t, opts, { batchId, hash, layout: plan.layout, bytes: source.bytes(), delimiter, t0 });
+			return finish(t, opts, { batchId, hash, layout: plan.layout, bytes: source.bytes(), delimiter, t0, tm, tally });
 		});
 		return outcome;
 	} catch (e) {
@@ -304,47 +338,135 @@ interface FinishInfo {
 	bytes: number;
 	delimiter: string;
 	t0: number;
+	tm: ReturnType<typeof timer>;
+	tally: Tally;
+}
+
+interface NewHead {
+	familyId: string;
+	customer: string | null;
+	mileageKm: number | null;
+	firstAt: string;
+	hasFinal: boolean;
+}
+
+interface Tally {
+	goodRows: number;
+	badRows: number;
+	goodReadings: number;
+	dupCandidates: number;
+	newHeads: Map<string, NewHead>;
+}
+
+function noteNewHead(heads: Map<string, NewHead>, g: GoodRow, _line: number) {
+	const h = heads.get(g.serial);
+	if (!h) {
+		heads.set(g.serial, { familyId: g.family.id, customer: g.customer, mileageKm: g.mileageKm, firstAt: g.measuredAt, hasFinal: g.stage === 'final' });
+		return;
+	}
+	if (g.measuredAt < h.firstAt) h.firstAt = g.measuredAt;
+	if (g.stage === 'final') h.hasFinal = true;
+	h.customer ??= g.customer;
+	h.mileageKm ??= g.mileageKm;
+}
+
+async function knownSerials(t: postgres.TransactionSql, shopId: string): Promise<Set<string>> {
+	const rows = await t<{ serial: string }[]>`select serial from heads where shop_id = ${shopId}`;
+	return new Set(rows.map((r) => r.serial));
+}
+
+/**
+ * Remembers reading keys in a fixed 16 MB bit table (FNV-1a hash): a key whose bit is already
+ * set may be a duplicate within the file and is marked for an exact check in SQL. Memory stays
+ * flat however large the file; a hash collision only costs that exact check.
+ */
+class KeySieve {
+	private bits = new Uint32Array(1 << 22); // 2^27 bits
+	add(key: string): boolean {
+		let h = 0x811c9dc5;
+		for (let i = 0; i < key.length; i++) {
+			h ^= key.charCodeAt(i);
+			h = Math.imul(h, 0x01000193);
+		}
+		const idx = (h >>> 0) & ((1 << 27) - 1);
+		const word = idx >>> 5;
+		const bit = 1 << (idx & 31);
+		const had = (this.bits[word] & bit) !== 0;
+		this.bits[word] |= bit;
+		return had;
+	}
 }
 
 /** Everything after the file is staged: checks across rows, then the writes. */
 async function finish(t: postgres.TransactionSql, opts: ImportOptions, info: FinishInfo): Promise<ImportOutcome> {
 	const { shopId } = opts;
-	// The same reading twice in the file: the later row is rejected whole.
-	await t.unsafe(`
-		with k as (
-			select line, min(line) over (partition by serial, stage, cylinder, side, valve, measurement, measured_at) as first_line
-			from import_stage where reason is null
-		), d as (select line, min(first_line) as first_line from k where line <> first_line group by line)
-		update import_stage s set reason = 'the same reading as line ' || d.first_line || ' (duplicate key in the file)'
-		from d where s.line = d.line`);
-	// A head that exists already keeps its family.
-	await t`
-		update import_stage s set reason = 'head ' || s.serial || ' is a ' || f.code || ' head, not ' || sf.code
-		from heads h join families f on f.id = h.family_id, families sf
-		where h.shop_id = ${shopId} and h.serial = s.serial and s.reason is null
-			and sf.id = s.family_id and h.family_id <> s.family_id`;
-	// Rows rejected above lost their text: give them a plain rendering of what was read.
-	await t`
-		update import_stage set raw = concat_ws(${info.delimiter}, serial, stage, cylinder, side, valve, measurement, value, measured_at, measured_by)
-		where reason is not null and raw is null`;
-	// A row is rejected whole: flag every reading of a row that has any reason.
-	await t`update import_stage set bad = true where line in (select line from import_stage where reason is not null)`;
+	const { tally } = info;
+	// Statistics for the planner before any join on the staging table.
 	await t`analyze import_stage`;
+	info.tm.mark('sql_analyze');
 
-	const [counts] = await t<{ accepted: number; rejected: number; candidates: number }[]>`
-		select count(distinct line) filter (where not bad)::int as accepted,
-			count(distinct line) filter (where bad)::int as rejected,
-			count(*) filter (where not bad)::int as candidates
-		from import_stage`;
+	// Lines rejected by checks across rows.
+	const sqlRejected = new Set<number>();
+	if (tally.dupCandidates > 0) {
+		// The same reading twice in the file: the later row is rejected whole. Only keys the
+		// sieve flagged are compared.
+		const rows = await t<{ line: number }[]>`
+			with cand as (
+				select distinct serial, stage, cylinder, side, valve, measurement, measured_at from import_stage where dup
+			), k as (
+				select s.line, min(s.line) over (partition by s.serial, s.stage, s.cylinder, s.side, s.valve, s.measurement, s.measured_at) as first_line
+				from import_stage s join cand c using (serial, stage, cylinder, side, valve, measurement, measured_at)
+				where s.reason is null
+			), d as (select line, min(first_line) as first_line from k where line <> first_line group by line)
+			update import_stage s set reason = 'the same reading as line ' || d.first_line || ' (duplicate key in the file)'
+			from d where s.line = d.line and s.ctid = (select min(x.ctid) from import_stage x where x.line = d.line)
+			returning s.line`;
+		for (const r of rows) sqlRejected.add(r.line);
+	}
+	info.tm.mark('sql_duplicates_in_file');
+	// A head that exists already keeps its family (compared once per head, not per reading).
+	if (tally.goodRows > 0) {
+		const rows = await t<{ line: number }[]>`
+			with mismatch as (
+				select d.serial, d.family_id, f.code as head_code, sf.code as file_code
+				from (select distinct serial, family_id from import_stage where known and reason is null) d
+				join heads h on h.shop_id = ${shopId} and h.serial = d.serial and h.family_id <> d.family_id
+				join families f on f.id = h.family_id
+				join families sf on sf.id = d.family_id
+			)
+			update import_stage s set reason = 'head ' || s.serial || ' is a ' || m.head_code || ' head, not ' || m.file_code
+			from mismatch m where s.known and s.serial = m.serial and s.family_id = m.family_id and s.reason is null
+			returning s.line`;
+		for (const r of rows) sqlRejected.add(r.line);
+	}
+	info.tm.mark('sql_family_check');
+
+	// A row is rejected whole: every reading of a line rejected above is left out, and the
+	// rejected line gets a plain rendering of what was read.
+	let droppedReadings = 0;
+	if (sqlRejected.size) {
+		const lines = [...sqlRejected];
+		const marked = await t`update import_stage set bad = true where line = any(${lines}::int[]) and serial is not null`;
+		droppedReadings = marked.count;
+		await t`
+			update import_stage set raw = concat_ws(${info.delimiter}, serial, stage, cylinder, side, valve, measurement, value, measured_at, measured_by)
+			where line = any(${lines}::int[]) and reason is not null and raw is null`;
+	}
+	info.tm.mark('sql_mark_rejected');
+
+	const accepted = tally.goodRows - sqlRejected.size;
+	const rejected = tally.badRows + sqlRejected.size;
+	const candidates = tally.goodReadings - droppedReadings;
 	const rejects = await t<RejectSample[]>`
 		select distinct on (line) line, reason, raw from import_stage where reason is not null order by line limit 50`;
+	info.tm.mark('sql_rejects');
 
 	const base: ImportResult = {
 		batchId: info.batchId,
 		dryRun: opts.dryRun,
 		layout: info.layout,
-		accepted: counts.accepted,
-		rejected: counts.rejected,
+		accepted,
+		rejected,
 		readings: 0,
 		duplicates: 0,
 		createdHeads: 0,
@@ -353,73 +475,96 @@ async function finish(t: postgres.TransactionSql, opts: ImportOptions, info: Fin
 		bytes: info.bytes,
 		seconds: 0
 	};
-	const aborting = counts.rejected > 0 && opts.onReject === 'abort';
+	const aborting = rejected > 0 && opts.onReject === 'abort';
 
 	if (opts.dryRun) {
-		// What would be stored: readings not already there.
-		const [would] = await t<{ readings: number; heads: number }[]>`
-			select count(*) filter (where r.id is null)::int as readings,
-				count(distinct s.serial) filter (where h.id is null)::int as heads
+		// What would be stored: every good reading of a new head, and those of known heads
+		// that are not stored yet.
+		const [would] = await t<{ existing: number }[]>`
+			select count(*)::int as existing
 			from import_stage s
-			left join heads h on h.shop_id = ${shopId} and h.serial = s.serial
-			left join readings r on r.head_id = h.id and r.stage = s.stage and r.cylinder = s.cylinder and r.side = s.side
+			join heads h on h.shop_id = ${shopId} and h.serial = s.serial
+			join readings r on r.head_id = h.id and r.stage = s.stage and r.cylinder = s.cylinder and r.side = s.side
 				and r.valve = s.valve and r.measurement = s.measurement and r.measured_at = s.measured_at
-			where not s.bad`;
-		base.readings = would.readings;
-		base.duplicates = counts.candidates - would.readings;
-		base.createdHeads = would.heads;
+			where s.known and s.reason is null and not s.bad`;
+		base.readings = candidates - would.existing;
+		base.duplicates = would.existing;
+		base.createdHeads = tally.newHeads.size;
 		base.seconds = (performance.now() - info.t0) / 1000;
 		throw new DryRunOutcome({ status: 200, result: base });
 	}
 
 	const batchId = info.batchId!;
-	await t`
-		insert into import_rejects (shop_id, batch_id, line, raw, reason)
-		select distinct on (line) ${shopId}::uuid, ${batchId}::uuid, line, coalesce(raw, ''), reason
-		from import_stage where reason is not null order by line`;
+	if (rejected > 0) {
+		await t`
+			insert into import_rejects (shop_id, batch_id, line, raw, reason)
+			select distinct on (line) ${shopId}::uuid, ${batchId}::uuid, line, coalesce(raw, ''), reason
+			from import_stage where reason is not null order by line`;
+	}
 
 	if (aborting) {
-		const message = `${counts.rejected} row${counts.rejected === 1 ? '' : 's'} rejected; nothing was imported (rejected rows abort this import).`;
+		const message = `${rejected} row${rejected === 1 ? '' : 's'} rejected; nothing was imported (rejected rows abort this import).`;
 		await t`
-			update import_batches set status = 'failed', error = ${message}, content_hash = ${info.hash}, rows_accepted = ${counts.accepted},
-				rows_rejected = ${counts.rejected}, bytes = ${info.bytes}, progress_rows = ${counts.accepted + counts.rejected}, finished_at = now()
+			update import_batches set status = 'failed', error = ${message}, content_hash = ${info.hash}, rows_accepted = ${accepted},
+				rows_rejected = ${rejected}, bytes = ${info.bytes}, progress_rows = ${accepted + rejected}, finished_at = now()
 			where id = ${batchId}`;
 		base.seconds = (performance.now() - info.t0) / 1000;
 		return { status: 422, result: base, message };
 	}
 
-	// Heads that do not exist yet, from the identity columns of their first good row.
-	const created = await t`
-		insert into heads (shop_id, family_id, serial, customer, received_on, mileage_km, status, created_by_batch)
-		select ${shopId}::uuid, g.family_id, g.serial, coalesce(g.customer, ''), g.received_on, g.mileage,
-			case when g.has_final then 'final_check'::head_status else 'inspected'::head_status end, ${batchId}::uuid
-		from (
-			select serial, (array_agg(family_id order by line))[1] as family_id, (array_agg(customer order by line))[1] as customer,
-				(array_agg(mileage order by line))[1] as mileage, min(measured_at)::date as received_on, bool_or(stage = 'final') as has_final
-			from import_stage where not bad group by serial
-		) g
-		where not exists (select 1 from heads h where h.shop_id = ${shopId} and h.serial = g.serial)`;
-	const inserted = await t`
+	// Heads that do not exist yet, from the identity columns of their first row.
+	let createdHeads = 0;
+	if (tally.newHeads.size) {
+		const serials = [...tally.newHeads.keys()];
+		const hs = [...tally.newHeads.values()];
+		const created = await t`
+			insert into heads (shop_id, family_id, serial, customer, received_on, mileage_km, status, created_by_batch)
+			select ${shopId}::uuid, f, s, coalesce(c, ''), a::timestamptz::date, m,
+				case when fin = 't' then 'final_check'::head_status else 'inspected'::head_status end, ${batchId}::uuid
+			from unnest(${serials}::text[], ${hs.map((h) => h.familyId)}::uuid[], ${hs.map((h) => h.customer)}::text[],
+				${hs.map((h) => h.firstAt)}::text[], ${hs.map((h) => h.mileageKm)}::int[], ${hs.map((h) => (h.hasFinal ? 't' : 'f'))}::text[]) as x(s, f, c, a, m, fin)`;
+		createdHeads = created.count;
+	}
+	info.tm.mark('sql_insert_heads');
+
+	// New heads cannot have stored readings yet: a plain insert. Known heads may: identical
+	// readings are skipped and counted as duplicates.
+	const fresh = await t`
 		insert into readings (shop_id, head_id, family_id, stage, cylinder, side, valve, measurement, value, measured_at, measured_by, instrument_id, batch_id)
 		select ${shopId}::uuid, h.id, h.family_id, s.stage, s.cylinder, s.side, s.valve, s.measurement, s.value, s.measured_at, s.measured_by, s.instrument_id, ${batchId}::uuid
 		from import_stage s
 		join heads h on h.shop_id = ${shopId} and h.serial = s.serial
-		where not s.bad
+		where not s.known and s.reason is null and not s.bad`;
+	const again = await t`
+		insert into readings (shop_id, head_id, family_id, stage, cylinder, side, valve, measurement, value, measured_at, measured_by, instrument_id, batch_id)
+		select ${shopId}::uuid, h.id, h.family_id, s.stage, s.cylinder, s.side, s.valve, s.measurement, s.value, s.measured_at, s.measured_by, s.instrument_id, ${batchId}::uuid
+		from import_stage s
+		join heads h on h.shop_id = ${shopId} and h.serial = s.serial
+		where s.known and s.reason is null and not s.bad
 		on conflict on constraint readings_identity_key do nothing`;
+	info.tm.mark('sql_insert_readings');
+	if (sqlRejected.size && createdHeads) {
+		// A new head whose every row was rejected above was created for nothing.
+		const gone = await t`
+			delete from heads h where h.created_by_batch = ${batchId} and not exists (select 1 from readings r where r.head_id = h.id)`;
+		createdHeads -= gone.count;
+	}
 
-	base.readings = inserted.count;
-	base.duplicates = counts.candidates - inserted.count;
-	base.createdHeads = created.count;
+	base.readings = fresh.count + again.count;
+	base.duplicates = candidates - base.readings;
+	base.createdHeads = createdHeads;
 	await t`
 		update import_batches set status = 'committed', content_hash = ${info.hash}, layout = ${info.layout},
-			rows_accepted = ${counts.accepted}, rows_rejected = ${counts.rejected}, readings = ${base.readings},
+			rows_accepted = ${accepted}, rows_rejected = ${rejected}, readings = ${base.readings},
 			duplicates = ${base.duplicates}, created_heads = ${base.createdHeads}, bytes = ${info.bytes},
-			progress_rows = ${counts.accepted + counts.rejected}, finished_at = now()
+			progress_rows = ${accepted + rejected}, finished_at = now()
 		where id = ${batchId}`;
 	await t`
 		insert into audit_log (shop_id, actor_user_id, actor_label, entity, entity_id, action, after)
 		values (${shopId}, ${opts.actor.userId}, ${opts.actor.label}, 'import', ${batchId}, 'import',
-			${JSON.stringify({ fileName: opts.fileName, accepted: counts.accepted, rejected: counts.rejected, readings: base.readings, duplicates: base.duplicates, createdHeads: base.createdHeads })}::jsonb)`;
+			${JSON.stringify({ fileName: opts.fileName, accepted, rejected, readings: base.readings, duplicates: base.duplicates, createdHeads: base.createdHeads })}::jsonb)`;
+	info.tm.mark('sql_batch_audit');
+	base.timings = info.tm.timings;
 	base.seconds = (performance.now() - info.t0) / 1000;
 	return { status: 201, result: base };
 }

@@ -60,6 +60,7 @@ export const POST: RequestHandler = async (event) => {
 			rejects: r.rejects.slice(0, 20),
 			bytes: r.bytes,
 			seconds: Math.round(r.seconds * 1000) / 1000,
+			timings: r.timings,
 			...('message' in outcome ? { message: outcome.message } : {})
 		};
 		return json(body, { status: outcome.status });
