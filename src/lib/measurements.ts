@@ -26,6 +26,13 @@ export type Stage = (typeof STAGES)[number];
 export const SIDES = ['intake', 'exhaust'] as const;
 export type Side = (typeof SIDES)[number];
 
+/** Guide bores are gauged in two directions 90° apart (along and across the head) … */
+export const BORE_DIRECTIONS = ['along', 'across'] as const;
+export type BoreDirection = (typeof BORE_DIRECTIONS)[number];
+/** … at up to three heights of the guide. */
+export const BORE_HEIGHTS = ['top', 'middle', 'bottom'] as const;
+export type BoreHeight = (typeof BORE_HEIGHTS)[number];
+
 export const ROLES = ['owner', 'engineer', 'machinist', 'viewer'] as const;
 export type Role = (typeof ROLES)[number];
 

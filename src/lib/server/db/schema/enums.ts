@@ -1,10 +1,12 @@
 import { pgEnum } from 'drizzle-orm/pg-core';
-import { MEASUREMENTS, ROLES, SIDES, STAGES } from '../../../measurements';
+import { BORE_DIRECTIONS, BORE_HEIGHTS, MEASUREMENTS, ROLES, SIDES, STAGES } from '../../../measurements';
 
 export const roleEnum = pgEnum('role', ROLES);
 export const stageEnum = pgEnum('stage', STAGES);
 export const sideEnum = pgEnum('side', SIDES);
 export const measurementEnum = pgEnum('measurement', MEASUREMENTS);
+export const boreDirectionEnum = pgEnum('bore_direction', BORE_DIRECTIONS);
+export const boreHeightEnum = pgEnum('bore_height', BORE_HEIGHTS);
 
 export const HEAD_STATUSES = ['received', 'inspected', 'in_rework', 'final_check', 'released'] as const;
 export const headStatusEnum = pgEnum('head_status', HEAD_STATUSES);
