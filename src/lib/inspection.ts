@@ -220,13 +220,13 @@ export function formatIn(canonical: number, m: Measurement, unit?: Unit): string
 /** Outside the limit in effect (limits are inclusive). */
 export function limitFlag(value: number, m: Measurement, limit: LimitVersion | null): Flag | null {
 	if (!limit) return null;
-	const label = MEASUREMENT_INFO[m].label.toLowerCase();
+	const label = MEASUREMENT_INFO[m].label;
 	const since = `limits from ${limit.effectiveFrom}`;
 	if (limit.min !== null && value < limit.min) {
-		return { kind: 'limit', level: 'bad', text: `${cap(label)} ${formatIn(value, m)} is below the minimum ${formatIn(limit.min, m)} (${since}).` };
+		return { kind: 'limit', level: 'bad', text: `${label} ${formatIn(value, m)} is below the minimum ${formatIn(limit.min, m)} (${since}).` };
 	}
 	if (limit.max !== null && value > limit.max) {
-		return { kind: 'limit', level: 'bad', text: `${cap(label)} ${formatIn(value, m)} is above the maximum ${formatIn(limit.max, m)} (${since}).` };
+		return { kind: 'limit', level: 'bad', text: `${label} ${formatIn(value, m)} is above the maximum ${formatIn(limit.max, m)} (${since}).` };
 	}
 	return null;
 }
@@ -341,8 +341,4 @@ export function checkValue(
 		if (ff) flags.push(ff);
 	}
 	return flags;
-}
-
-function cap(s: string): string {
-	return s.charAt(0).toUpperCase() + s.slice(1);
 }

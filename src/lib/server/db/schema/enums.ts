@@ -9,9 +9,11 @@ export const boreDirectionEnum = pgEnum('bore_direction', BORE_DIRECTIONS);
 export const boreHeightEnum = pgEnum('bore_height', BORE_HEIGHTS);
 
 export const HEAD_STATUSES = ['received', 'inspected', 'in_rework', 'final_check', 'released'] as const;
+export type HeadStatus = (typeof HEAD_STATUSES)[number];
 export const headStatusEnum = pgEnum('head_status', HEAD_STATUSES);
 
 export const LEAK_PATHS = ['none', 'intake', 'exhaust', 'crankcase', 'coolant'] as const;
+export type LeakPath = (typeof LEAK_PATHS)[number];
 export const leakPathEnum = pgEnum('leak_path', LEAK_PATHS);
 
 export const DECISION_KINDS = [
@@ -24,6 +26,7 @@ export const DECISION_KINDS = [
 	'replace_guide',
 	'knurl_guide'
 ] as const;
+export type DecisionKind = (typeof DECISION_KINDS)[number];
 export const decisionKindEnum = pgEnum('decision_kind', DECISION_KINDS);
 
 export const BATCH_STATUSES = ['running', 'committed', 'failed', 'undone'] as const;
