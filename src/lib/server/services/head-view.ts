@@ -73,7 +73,8 @@ export function today(): string {
 }
 
 /** Null when the head is not this shop's (row-level security hides it, or it does not exist). */
-export async function loadHeadView(conn: Conn, shopId: string, headId: string, opts: { fleet?: boolean } = {}) {
+/** `fleet`: also compare every value with the family's fleet at that stage (two percentile passes). */
+export async function loadHeadView(conn: Conn, shopId: string, headId: string, opts: { fleet?: Stage } = {}) {
 	const found = await headById(conn, shopId, headId);
 	if (!found) return null;
 	const { head, family } = found;
@@ -96,15 +97,13 @@ export async function loadHeadView(conn: Conn, shopId: string, headId: string, o
 	const limits: LimitVersion[] = versions.map((v) => ({ measurement: v.measurement, side: v.side, stage: v.stage, min: v.min, max: v.max, effectiveFrom: v.effectiveFrom }));
 	const fleet: Record<Stage, Partial<Record<string, FleetStat>>> = { as_received: {}, final: {} };
 	if (opts.fleet) {
-		for (const stage of STAGES) {
-			for (const r of await fleetStats(conn, shopId, family.id, stage)) fleet[stage][fleetKey(r.side, r.measurement)] = { median: r.median, mad: r.mad, n: r.n };
-		}
+		for (const r of await fleetStats(conn, shopId, family.id, opts.fleet)) fleet[opts.fleet][fleetKey(r.side, r.measurement)] = { median: r.median, mad: r.mad, n: r.n };
 	}
 	const ctxFor = (stage: Stage): CheckContext => ({
 		limits,
 		marks,
 		gauges,
-		fleet: opts.fleet ? fleet[stage] : undefined,
+		fleet: opts.fleet === stage ? fleet[stage] : undefined,
 		fleetLabel: (side: Side) => `${family.code} ${side} ${stage === 'final' ? 'final' : 'as-received'}`
 	});
 

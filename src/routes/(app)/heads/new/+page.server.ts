@@ -23,6 +23,11 @@ export const load: PageServerLoad = async (event) => {
 
 const str = (v: FormDataEntryValue | null) => (typeof v === 'string' ? v : '');
 
+function violates(e: unknown, constraint: string): boolean {
+	const cause = ((e as { cause?: unknown })?.cause ?? e) as { code?: string; constraint_name?: string };
+	return cause?.code === '23505' && cause.constraint_name === constraint;
+}
+
 export const actions: Actions = {
 	default: async (event) => {
 		const actor = requireRole(event, 'machinist');
@@ -43,7 +48,14 @@ export const actions: Actions = {
 		if (!parsed.success || Object.keys(errors).length) {
 			return fail(400, { values: raw, errors: { form: 'The head was not saved: correct the fields marked.', ...errors } });
 		}
-		const result = await withShop(db, actor.shopId, (tx) => intakeHead(tx, actor.shopId, whoIs(actor), { ...parsed.data, leaks }));
+		let result;
+		try {
+			result = await withShop(db, actor.shopId, (tx) => intakeHead(tx, actor.shopId, whoIs(actor), { ...parsed.data, leaks }));
+		} catch (e) {
+			// Two people taking in the same serial at the same moment: the second is told so.
+			if (violates(e, 'heads_shop_serial_key')) return fail(409, { values: raw, errors: { form: 'The head was not saved.', serial: `Head ${parsed.data.serial} was just taken in by someone else.` } });
+			throw e;
+		}
 		if (!result.ok) return fail(result.code, { values: raw, errors: { form: result.message, ...result.errors } });
 		redirect(303, `/heads/${result.head.id}?taken=1`);
 	}

@@ -20,7 +20,7 @@ export const load: PageServerLoad = async (event) => {
 	const id = idParam(event.params.id);
 	const stage = stageParam(event.params.stage);
 	return withShop(db, actor.shopId, async (tx) => {
-		const view = await loadHeadView(tx, actor.shopId, id, { fleet: true });
+		const view = await loadHeadView(tx, actor.shopId, id, { fleet: stage });
 		if (!view) error(404, 'No such head in this shop.');
 		const { head, family } = view;
 		return {
