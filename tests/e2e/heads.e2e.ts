@@ -68,6 +68,18 @@ describe('a head from intake to release', () => {
 		// 60 000 miles × 1.609344 = 96 560.64 km, kept to the km.
 		await page.getByText('96,561 km').waitFor();
 		await page.getByText('22.0 %').waitFor();
+
+		// The list finds it by serial (filters live in the URL) and sorts by a column header.
+		await page.goto(`${baseURL}/heads`);
+		await page.getByLabel('Serial, customer or complaint').fill(serial);
+		await page.getByLabel('Serial, customer or complaint').press('Enter');
+		await page.waitForURL((u) => u.searchParams.get('q') === serial);
+		await page.getByRole('link', { name: serial }).waitFor();
+		expect(await page.getByTestId('head-row').count()).toBe(1);
+		await page.getByRole('link', { name: 'Family', exact: true }).click();
+		await page.waitForURL((u) => u.searchParams.get('sort') === 'family' && u.searchParams.get('dir') === 'asc');
+		expect(await page.getByRole('columnheader', { name: /Family/ }).getAttribute('aria-sort')).toBe('ascending');
+		await shot(page, 'heads-01b-list');
 	});
 
 	it('enters the as-received readings in inches, keyboard only, and flags as it goes', async () => {
