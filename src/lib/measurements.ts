@@ -26,6 +26,13 @@ export type Stage = (typeof STAGES)[number];
 export const SIDES = ['intake', 'exhaust'] as const;
 export type Side = (typeof SIDES)[number];
 
+/** Guide bores are gauged in two directions 90° apart (along and across the head) … */
+export const BORE_DIRECTIONS = ['along', 'across'] as const;
+export type BoreDirection = (typeof BORE_DIRECTIONS)[number];
+/** … at up to three heights of the guide. */
+export const BORE_HEIGHTS = ['top', 'middle', 'bottom'] as const;
+export type BoreHeight = (typeof BORE_HEIGHTS)[number];
+
 export const ROLES = ['owner', 'engineer', 'machinist', 'viewer'] as const;
 export type Role = (typeof ROLES)[number];
 
@@ -117,4 +124,61 @@ export function parseStage(text: string): Stage | null {
 	if (t === 'as_received' || t === 'received' || t === 'ar') return 'as_received';
 	if (t === 'final' || t === 'fi') return 'final';
 	return null;
+}
+
+// ---------------------------------------------------------------------------------------------
+// Pressures, distances and the two percentages computed from gauge pressures.
+
+/**
+ * Pressure units a gauge may read in, with their size in kPa. 1 psi = 6.894757293168361 kPa
+ * (1 lbf = 4.4482216152605 N over (0.0254 m)², both exact: NIST SP 811, B.8); 1 bar = 100 kPa
+ * exactly; 1 inHg = 3.386389 kPa (conventional inch of mercury, NIST SP 811, B.8).
+ */
+export const PRESSURE_UNITS = ['kPa', 'psi', 'bar', 'inHg'] as const;
+export type PressureUnit = (typeof PRESSURE_UNITS)[number];
+export const KPA_PER: Record<PressureUnit, number> = { kPa: 1, psi: 6.894757293168361, bar: 100, inHg: 3.386389 };
+
+export function pressureToKpa(value: number, unit: PressureUnit): number {
+	return unit === 'kPa' ? value : roundSig(value * KPA_PER[unit], 12);
+}
+export function pressureFromKpa(kpa: number, unit: PressureUnit): number {
+	return unit === 'kPa' ? kpa : roundSig(kpa / KPA_PER[unit], 12);
+}
+
+/** 1 mile = 1.609344 km exactly (international mile, 1959; NIST SP 811). */
+export const KM_PER_MILE = 1.609344;
+export const DISTANCE_UNITS = ['km', 'mi'] as const;
+export type DistanceUnit = (typeof DISTANCE_UNITS)[number];
+/** Kilometres, rounded to the whole kilometre the heads table keeps. */
+export function distanceToKm(value: number, unit: DistanceUnit): number {
+	return Math.round(unit === 'km' ? value : value * KM_PER_MILE);
+}
+
+/**
+ * Cylinder leakage from a differential (leak-down) gauge: (in − held) / in × 100, the same in
+ * any pressure unit. Rounded to 0.1 %, the gauge's own resolution at best.
+ */
+export function leakagePercent(pressureIn: number, held: number): number {
+	if (!(pressureIn > 0)) throw new RangeError('The pressure in must be above zero.');
+	if (!(held >= 0 && held <= pressureIn)) throw new RangeError('The held pressure must be between zero and the pressure in.');
+	return Math.round(((pressureIn - held) / pressureIn) * 1000) / 10;
+}
+
+/** Bench vacuum test: the share of the applied vacuum the closed valve held, in %, to 0.1 %. */
+export function vacuumHoldPercent(applied: number, held: number): number {
+	if (!(applied > 0)) throw new RangeError('The applied vacuum must be above zero.');
+	if (!(held >= 0 && held <= applied)) throw new RangeError('The held vacuum must be between zero and the applied vacuum.');
+	return Math.round((held / applied) * 1000) / 10;
+}
+
+/**
+ * A number as people type it into a measuring form: digits with one decimal point or comma,
+ * optional leading zero ("0.3125", ".3125", "7,062"). Null for anything else (signs,
+ * exponents, thousands separators, text): a reading is never guessed at.
+ */
+export function parseDecimal(text: string): number | null {
+	const t = text.trim();
+	if (!/^(\d+([.,]\d*)?|[.,]\d+)$/.test(t)) return null;
+	const n = Number(t.replace(',', '.'));
+	return Number.isFinite(n) ? n : null;
 }

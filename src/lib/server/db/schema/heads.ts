@@ -7,6 +7,7 @@ import {
 	foreignKey,
 	index,
 	integer,
+	jsonb,
 	pgTable,
 	smallint,
 	text,
@@ -39,6 +40,9 @@ export const heads = pgTable(
 		status: headStatusEnum().notNull().default('received'),
 		/** Set on a job that brings a released head back: the original job. */
 		comebackOf: uuid().references((): AnyPgColumn => heads.id, { onDelete: 'set null' }),
+		/** Who released the head, and the owner's written reason when it went out over a failing check. */
+		releasedBy: text().references(() => users.id, { onDelete: 'set null' }),
+		releaseOverrideReason: text(),
 		/** The import that created this head, so undoing the import can remove it. */
 		createdByBatch: uuid(),
 		createdAt: timestamp({ withTimezone: true }).notNull().defaultNow()
@@ -60,7 +64,8 @@ export const heads = pgTable(
 		check('heads_hours_range', sql`${t.engineHours} is null or ${t.engineHours} between 0 and 500000`),
 		check('heads_released_after_received', sql`${t.releasedOn} is null or ${t.releasedOn} >= ${t.receivedOn}`),
 		check('heads_released_status', sql`(${t.status} = 'released') = (${t.releasedOn} is not null)`),
-		check('heads_not_own_comeback', sql`${t.comebackOf} is null or ${t.comebackOf} <> ${t.id}`)
+		check('heads_not_own_comeback', sql`${t.comebackOf} is null or ${t.comebackOf} <> ${t.id}`),
+		check('heads_override_when_released', sql`${t.releaseOverrideReason} is null or (${t.status} = 'released' and length(trim(${t.releaseOverrideReason})) between 10 and 2000)`)
 	]
 );
 export type Head = typeof heads.$inferSelect;
@@ -117,3 +122,38 @@ export const decisions = pgTable(
 	]
 );
 export type Decision = typeof decisions.$inferSelect;
+
+export interface PositionRef {
+	cylinder: number;
+	side: 'intake' | 'exhaust';
+	valve: number;
+}
+
+/**
+ * What came back and why. The comeback itself is a head row of its own (`heads.comeback_of` =
+ * the original job, received on the day it came back, with its mileage); this row holds what
+ * failed and which valve positions, so comeback rates can be counted per family and position.
+ */
+export const comebacks = pgTable(
+	'comebacks',
+	{
+		id: uuid().primaryKey().defaultRandom(),
+		shopId: uuid().notNull(),
+		headId: uuid().notNull(),
+		originalHeadId: uuid().notNull(),
+		whatFailed: text().notNull(),
+		positions: jsonb().$type<PositionRef[]>().notNull().default([]),
+		recordedBy: text().references(() => users.id, { onDelete: 'set null' }),
+		createdAt: timestamp({ withTimezone: true }).notNull().defaultNow()
+	},
+	(t) => [
+		foreignKey({ name: 'comebacks_head_fk', columns: [t.shopId, t.headId], foreignColumns: [heads.shopId, heads.id] }).onDelete('cascade'),
+		foreignKey({ name: 'comebacks_original_fk', columns: [t.shopId, t.originalHeadId], foreignColumns: [heads.shopId, heads.id] }).onDelete('cascade'),
+		unique('comebacks_head_key').on(t.headId),
+		index('comebacks_original_idx').on(t.originalHeadId),
+		check('comebacks_not_own', sql`${t.headId} <> ${t.originalHeadId}`),
+		check('comebacks_what_failed', sql`length(trim(${t.whatFailed})) between 1 and 2000`),
+		check('comebacks_positions_array', sql`jsonb_typeof(${t.positions}) = 'array'`)
+	]
+);
+export type Comeback = typeof comebacks.$inferSelect;

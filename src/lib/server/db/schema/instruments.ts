@@ -1,5 +1,6 @@
 import { sql } from 'drizzle-orm';
-import { boolean, check, date, doublePrecision, index, integer, pgTable, text, timestamp, unique, uuid } from 'drizzle-orm/pg-core';
+import { boolean, check, date, doublePrecision, foreignKey, index, integer, pgTable, text, timestamp, unique, uuid } from 'drizzle-orm/pg-core';
+import { users } from './auth';
 import { shops } from './shops';
 
 /** Gauges and their calibration. A reading taken after `calibratedOn + intervalDays` is flagged. */
@@ -29,3 +30,27 @@ export const instruments = pgTable(
 	]
 );
 export type Instrument = typeof instruments.$inferSelect;
+
+/**
+ * Every calibration of a gauge, so a reading is judged by the calibration in effect on its
+ * day. `instruments.calibrated_on` / `interval_days` repeat the latest one.
+ */
+export const instrumentCalibrations = pgTable(
+	'instrument_calibrations',
+	{
+		id: uuid().primaryKey().defaultRandom(),
+		shopId: uuid().notNull(),
+		instrumentId: uuid().notNull(),
+		calibratedOn: date().notNull(),
+		intervalDays: integer().notNull(),
+		note: text().notNull().default(''),
+		recordedBy: text().references(() => users.id, { onDelete: 'set null' }),
+		createdAt: timestamp({ withTimezone: true }).notNull().defaultNow()
+	},
+	(t) => [
+		foreignKey({ name: 'instrument_calibrations_instrument_fk', columns: [t.shopId, t.instrumentId], foreignColumns: [instruments.shopId, instruments.id] }).onDelete('cascade'),
+		unique('instrument_calibrations_day_key').on(t.instrumentId, t.calibratedOn),
+		check('instrument_calibrations_interval_range', sql`${t.intervalDays} between 1 and 3650`)
+	]
+);
+export type InstrumentCalibration = typeof instrumentCalibrations.$inferSelect;

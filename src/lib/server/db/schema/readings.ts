@@ -12,7 +12,8 @@ import {
 	unique,
 	uuid
 } from 'drizzle-orm/pg-core';
-import { measurementEnum, sideEnum, stageEnum } from './enums';
+import { users } from './auth';
+import { boreDirectionEnum, boreHeightEnum, measurementEnum, sideEnum, stageEnum } from './enums';
 import { heads } from './heads';
 import { importBatches } from './imports';
 import { instruments } from './instruments';
@@ -84,3 +85,39 @@ export const readings = pgTable(
 	]
 );
 export type Reading = typeof readings.$inferSelect;
+
+/**
+ * The raw guide bore gauge readings behind a position's `guide_bore` and `clearance`: two
+ * directions 90° apart at up to three heights. One current value per cell (a correction
+ * replaces it; the audit log keeps what it was). The largest of them is stored in `readings`
+ * as the position's guide bore, and the clearance is that minus the stem diameter.
+ */
+export const boreReadings = pgTable(
+	'bore_readings',
+	{
+		id: uuid().primaryKey().defaultRandom(),
+		shopId: uuid().notNull(),
+		headId: uuid().notNull(),
+		stage: stageEnum().notNull(),
+		cylinder: smallint().notNull(),
+		side: sideEnum().notNull(),
+		valve: smallint().notNull(),
+		direction: boreDirectionEnum().notNull(),
+		height: boreHeightEnum().notNull(),
+		valueMm: doublePrecision().notNull(),
+		measuredAt: timestamp({ withTimezone: true }).notNull(),
+		measuredBy: text().notNull(),
+		instrumentId: uuid(),
+		enteredBy: text().references(() => users.id, { onDelete: 'set null' })
+	},
+	(t) => [
+		foreignKey({ name: 'bore_readings_head_fk', columns: [t.shopId, t.headId], foreignColumns: [heads.shopId, heads.id] }).onDelete('cascade'),
+		foreignKey({ name: 'bore_readings_instrument_fk', columns: [t.shopId, t.instrumentId], foreignColumns: [instruments.shopId, instruments.id] }),
+		unique('bore_readings_cell_key').on(t.headId, t.stage, t.cylinder, t.side, t.valve, t.direction, t.height),
+		check('bore_readings_cylinder_range', sql`${t.cylinder} between 1 and 16`),
+		check('bore_readings_valve_range', sql`${t.valve} between 1 and 3`),
+		check('bore_readings_value_plausible', sql`${t.valueMm} between 1 and 30`),
+		check('bore_readings_measured_by_not_blank', sql`length(trim(${t.measuredBy})) between 1 and 120`)
+	]
+);
+export type BoreReading = typeof boreReadings.$inferSelect;

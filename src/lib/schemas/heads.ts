@@ -1,0 +1,116 @@
+// Inputs of the head workflow: the list's query string, intake, decisions, release, comebacks.
+import { z } from 'zod';
+import { DISTANCE_UNITS, PRESSURE_UNITS } from '$lib/measurements';
+import { parsePosKey } from '$lib/inspection';
+
+export const HEAD_STATUSES = ['received', 'inspected', 'in_rework', 'final_check', 'released'] as const;
+export const STATUS_LABEL: Record<(typeof HEAD_STATUSES)[number], string> = {
+	received: 'Received',
+	inspected: 'Inspected',
+	in_rework: 'In rework',
+	final_check: 'Final check',
+	released: 'Released'
+};
+export const LEAK_PATHS = ['none', 'intake', 'exhaust', 'crankcase', 'coolant'] as const;
+export const LEAK_PATH_LABEL: Record<(typeof LEAK_PATHS)[number], string> = {
+	none: 'Not heard / none',
+	intake: 'Intake side',
+	exhaust: 'Exhaust side',
+	crankcase: 'Crankcase (rings)',
+	coolant: 'Coolant (gasket)'
+};
+export const DECISION_KINDS = ['reuse', 'lap', 'recut_seat', 'reface_valve', 'replace_valve', 'replace_seat', 'replace_guide', 'knurl_guide'] as const;
+
+const day = z.string().regex(/^\d{4}-\d{2}-\d{2}$/, 'Use a date like 2026-01-31.').refine((s) => !Number.isNaN(Date.parse(`${s}T00:00:00Z`)), 'That date does not exist.');
+const uuid = (message: string) => z.uuid({ message });
+/** A decimal as typed: digits with one point or comma; empty means "not given". */
+const decimalText = z
+	.string()
+	.trim()
+	.max(20, 'That is too long for a number.')
+	.refine((s) => s === '' || /^(\d+([.,]\d*)?|[.,]\d+)$/.test(s), 'Type a number with digits and one decimal point.')
+	.transform((s) => (s === '' ? null : Number(s.replace(',', '.'))));
+
+export const headFilterSchema = z.object({
+	q: z.string().trim().max(100).optional(),
+	family: z.uuid({ message: 'Unknown family.' }).optional(),
+	status: z.enum(HEAD_STATUSES, { message: 'Unknown status.' }).optional(),
+	from: day.optional(),
+	to: day.optional(),
+	comeback: z.enum(['only', 'none']).optional(),
+	sort: z.enum(['serial', 'family', 'customer', 'status', 'received', 'released']).default('received'),
+	dir: z.enum(['asc', 'desc']).default('desc'),
+	page: z.coerce.number().int().min(1).max(100_000).default(1)
+});
+export type HeadFilterInput = z.infer<typeof headFilterSchema>;
+
+// ---------------------------------------------------------------------------------------------
+// Intake
+
+export const intakeSchema = z
+	.object({
+		serial: z
+			.string()
+			.trim()
+			.min(1, 'Type the serial or casting number.')
+			.max(64, 'At most 64 characters.')
+			.regex(/^[^\p{Cc}]+$/u, 'Use letters, digits and punctuation only.'),
+		familyId: uuid('Choose the engine family.'),
+		customer: z.string().trim().min(1, 'Name the customer (a garage, a fleet or a person).').max(120, 'At most 120 characters.'),
+		customerEmail: z
+			.string()
+			.trim()
+			.toLowerCase()
+			.max(254, 'That address is too long.')
+			.refine((s) => s === '' || z.email().safeParse(s).success, 'That does not look like an e-mail address.')
+			.transform((s) => (s === '' ? null : s)),
+		receivedOn: day,
+		usageUnit: z.enum([...DISTANCE_UNITS, 'h'], { message: 'Choose km, miles or hours.' }),
+		usage: decimalText,
+		complaint: z.string().trim().max(2000, 'At most 2000 characters.').default(''),
+		leakMode: z.enum(['pct', 'pressure'], { message: 'Choose how the leakage was written down.' }),
+		pressureUnit: z.enum(PRESSURE_UNITS, { message: 'Choose the gauge’s pressure unit.' })
+	})
+	.superRefine((v, ctx) => {
+		if (v.usage !== null) {
+			const max = v.usageUnit === 'h' ? 500_000 : v.usageUnit === 'mi' ? 3_100_000 : 5_000_000;
+			if (v.usage > max) ctx.addIssue({ code: 'custom', path: ['usage'], message: `That is more than ${max.toLocaleString('en-US')} ${v.usageUnit === 'mi' ? 'miles' : v.usageUnit}.` });
+		}
+	});
+export type IntakeInput = z.infer<typeof intakeSchema>;
+
+export const leakRowSchema = z.object({
+	pct: decimalText.refine((n) => n === null || n <= 100, 'Leakage is a share: 0 to 100 %.'),
+	pin: decimalText,
+	held: decimalText,
+	path: z.enum(LEAK_PATHS, { message: 'Choose where the leak was heard.' })
+});
+
+// ---------------------------------------------------------------------------------------------
+// Decisions, release, comebacks, report
+
+const posKey = z.string().refine((s) => parsePosKey(s) !== null, 'Unknown valve position.');
+
+export const decideSchema = z.object({
+	pos: posKey,
+	kind: z.enum(DECISION_KINDS, { message: 'Choose what to do with this position.' }),
+	note: z.string().trim().max(500, 'At most 500 characters.').default(''),
+	acknowledge: z.literal('on').optional()
+});
+
+export const releaseSchema = z.object({
+	override: z.literal('on').optional(),
+	reason: z.string().trim().max(2000, 'At most 2000 characters.').default('')
+});
+
+export const comebackSchema = z
+	.object({
+		returnedOn: day,
+		usageUnit: z.enum([...DISTANCE_UNITS, 'h'], { message: 'Choose km, miles or hours.' }),
+		usage: decimalText,
+		whatFailed: z.string().trim().min(3, 'Say what failed (a few words at least).').max(2000, 'At most 2000 characters.'),
+		positions: z.array(posKey).max(48)
+	})
+	.superRefine((v, ctx) => {
+		if (v.usage !== null && v.usage > 5_000_000) ctx.addIssue({ code: 'custom', path: ['usage'], message: 'That is too far.' });
+	});
