@@ -12,7 +12,14 @@ export function createDb(url: string, options: postgres.Options<Record<string, n
 	const sql = postgres(url, {
 		max: 10,
 		onnotice: () => {},
-		...options
+		...options,
+		connection: {
+			application_name: 'lapmark',
+			// Imports stage whole files in temporary tables; PostgreSQL's default of 8 MB of
+			// temporary buffers sends a large staging table to disk. Allocated only when used.
+			temp_buffers: '256MB',
+			...options.connection
+		}
 	});
 	const db = drizzle(sql, { schema, casing: 'snake_case' });
 	return { db, sql };

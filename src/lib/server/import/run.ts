@@ -1,6 +1,7 @@
 // The bulk import: stream → parse (papaparse) → check each row → COPY into a staging table →
 // set-based checks and one INSERT … SELECT into readings, all in one transaction. A batch is
 // committed whole or not at all; a crash, a kill or a database restart leaves nothing of it.
+import { randomUUID } from 'node:crypto';
 import { once } from 'node:events';
 import { Readable } from 'node:stream';
 import Papa from 'papaparse';
@@ -70,7 +71,7 @@ export type ImportOutcome =
 	| { status: 422; result: ImportResult; message: string };
 
 const STAGE_COLUMNS =
-	'line, serial, family_id, stage, cylinder, side, valve, measurement, value, measured_at, measured_by, instrument_id, mileage, customer, reason, raw, known, dup';
+	'line, serial, head_id, family_id, stage, cylinder, side, valve, measurement, value, measured_at, measured_by, instrument_id, mileage, customer, reason, raw, known, dup';
 
 /** One field in COPY text format. */
 function esc(v: string | number | null): string {
@@ -180,7 +181,7 @@ export async function runImport(sql: postgres.Sql, body: AsyncIterable<Uint8Arra
 			const ctx = await loadContext(t, opts.shopId, delimiter === ';', now);
 
 			await t.unsafe(`create temp table import_stage (
-				line int not null, serial text, family_id uuid, stage stage, cylinder smallint, side side, valve smallint,
+				line int not null, serial text, head_id uuid, family_id uuid, stage stage, cylinder smallint, side side, valve smallint,
 				measurement measurement, value double precision, measured_at timestamptz, measured_by text,
 				instrument_id uuid, mileage integer, customer text, reason text, raw text,
 				known boolean not null default false, dup boolean not null default false, bad boolean not null default false
@@ -240,12 +241,13 @@ export async function runImport(sql: postgres.Sql, body: AsyncIterable<Uint8Arra
 					const r = checkRow(cells, plan, ctx);
 					if (r.ok) {
 						const g = r.row;
-						const isKnown = known.has(g.serial);
-						if (!isKnown) noteNewHead(tally.newHeads, g, line);
+						const knownHead = known.get(g.serial);
+						const isKnown = knownHead !== undefined;
+						const headId = knownHead ? knownHead.id : noteNewHead(tally.newHeads, g);
 						tally.goodRows++;
 						tally.goodReadings += g.readings.length;
 						const keyPrefix = `${g.serial}\u0000${g.stage}\u0000${g.cylinder}\u0000${g.side}\u0000${g.valve}\u0000${g.measuredAt}\u0000`;
-						const prefix = `${line}\t${esc(g.serial)}\t${g.family.id}\t${g.stage}\t${g.cylinder}\t${g.side}\t${g.valve}\t`;
+						const prefix = `${line}\t${esc(g.serial)}\t${headId}\t${g.family.id}\t${g.stage}\t${g.cylinder}\t${g.side}\t${g.valve}\t`;
 						const suffix = `\t${g.measuredAt}\t${esc(g.measuredBy)}\t${esc(g.instrumentId)}\t${esc(g.mileageKm)}\t${esc(g.customer)}\t\\N\t\\N\t${isKnown ? 't' : 'f'}\t`;
 						for (const m of g.readings) {
 							// A key seen before (or a rare hash collision) is checked exactly in SQL.
@@ -256,7 +258,7 @@ export async function runImport(sql: postgres.Sql, body: AsyncIterable<Uint8Arra
 					} else {
 						tally.badRows++;
 						const raw = Papa.unparse([cells], { delimiter, newline: '' });
-						buf += `${line}\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t${esc(r.reason)}\t${esc(raw.slice(0, 4000))}\tf\tf\n`;
+						buf += `${line}\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t${esc(r.reason)}\t${esc(raw.slice(0, 4000))}\tf\tf\n`;
 					}
 					if (buf.length > 1 << 18) await flush();
 					if (batchId && rows % 25_000 === 0) void sql`update import_batches set progress_rows = ${rows} where id = ${batchId}`.catch(() => {});
@@ -343,6 +345,8 @@ interface FinishInfo {
 }
 
 interface NewHead {
+	/** Chosen here, so staged readings carry their head and need no join to find it. */
+	id: string;
 	familyId: string;
 	customer: string | null;
 	mileageKm: number | null;
@@ -358,21 +362,24 @@ interface Tally {
 	newHeads: Map<string, NewHead>;
 }
 
-function noteNewHead(heads: Map<string, NewHead>, g: GoodRow, _line: number) {
+/** Notes a head the import creates (first row's identity columns win); returns its id. */
+function noteNewHead(heads: Map<string, NewHead>, g: GoodRow): string {
 	const h = heads.get(g.serial);
 	if (!h) {
-		heads.set(g.serial, { familyId: g.family.id, customer: g.customer, mileageKm: g.mileageKm, firstAt: g.measuredAt, hasFinal: g.stage === 'final' });
-		return;
+		const id = randomUUID();
+		heads.set(g.serial, { id, familyId: g.family.id, customer: g.customer, mileageKm: g.mileageKm, firstAt: g.measuredAt, hasFinal: g.stage === 'final' });
+		return id;
 	}
 	if (g.measuredAt < h.firstAt) h.firstAt = g.measuredAt;
 	if (g.stage === 'final') h.hasFinal = true;
 	h.customer ??= g.customer;
 	h.mileageKm ??= g.mileageKm;
+	return h.id;
 }
 
-async function knownSerials(t: postgres.TransactionSql, shopId: string): Promise<Set<string>> {
-	const rows = await t<{ serial: string }[]>`select serial from heads where shop_id = ${shopId}`;
-	return new Set(rows.map((r) => r.serial));
+async function knownSerials(t: postgres.TransactionSql, shopId: string): Promise<Map<string, { id: string }>> {
+	const rows = await t<{ serial: string; id: string }[]>`select serial, id from heads where shop_id = ${shopId}`;
+	return new Map(rows.map((r) => [r.serial, { id: r.id }]));
 }
 
 /**
@@ -483,8 +490,7 @@ async function finish(t: postgres.TransactionSql, opts: ImportOptions, info: Fin
 		const [would] = await t<{ existing: number }[]>`
 			select count(*)::int as existing
 			from import_stage s
-			join heads h on h.shop_id = ${shopId} and h.serial = s.serial
-			join readings r on r.head_id = h.id and r.stage = s.stage and r.cylinder = s.cylinder and r.side = s.side
+			join readings r on r.head_id = s.head_id and r.stage = s.stage and r.cylinder = s.cylinder and r.side = s.side
 				and r.valve = s.valve and r.measurement = s.measurement and r.measured_at = s.measured_at
 			where s.known and s.reason is null and not s.bad`;
 		base.readings = candidates - would.existing;
@@ -518,12 +524,15 @@ async function finish(t: postgres.TransactionSql, opts: ImportOptions, info: Fin
 		const serials = [...tally.newHeads.keys()];
 		const hs = [...tally.newHeads.values()];
 		const created = await t`
-			insert into heads (shop_id, family_id, serial, customer, received_on, mileage_km, status, created_by_batch)
-			select ${shopId}::uuid, f, s, coalesce(c, ''), a::timestamptz::date, m,
+			insert into heads (id, shop_id, family_id, serial, customer, received_on, mileage_km, status, created_by_batch)
+			select i, ${shopId}::uuid, f, s, coalesce(c, ''), a::timestamptz::date, m,
 				case when fin = 't' then 'final_check'::head_status else 'inspected'::head_status end, ${batchId}::uuid
-			from unnest(${serials}::text[], ${hs.map((h) => h.familyId)}::uuid[], ${hs.map((h) => h.customer)}::text[],
-				${hs.map((h) => h.firstAt)}::text[], ${hs.map((h) => h.mileageKm)}::int[], ${hs.map((h) => (h.hasFinal ? 't' : 'f'))}::text[]) as x(s, f, c, a, m, fin)`;
+			from unnest(${hs.map((h) => h.id)}::uuid[], ${serials}::text[], ${hs.map((h) => h.familyId)}::uuid[], ${hs.map((h) => h.customer)}::text[],
+				${hs.map((h) => h.firstAt)}::text[], ${hs.map((h) => h.mileageKm)}::int[], ${hs.map((h) => (h.hasFinal ? 't' : 'f'))}::text[]) as x(i, s, f, c, a, m, fin)`;
 		createdHeads = created.count;
+		// Many new heads can change the table's size by orders of magnitude (a new shop's first
+		// file): fresh statistics keep the foreign-key checks on index scans.
+		if (createdHeads >= 100) await t`analyze heads`;
 	}
 	info.tm.mark('sql_insert_heads');
 
@@ -531,15 +540,13 @@ async function finish(t: postgres.TransactionSql, opts: ImportOptions, info: Fin
 	// readings are skipped and counted as duplicates.
 	const fresh = await t`
 		insert into readings (shop_id, head_id, family_id, stage, cylinder, side, valve, measurement, value, measured_at, measured_by, instrument_id, batch_id)
-		select ${shopId}::uuid, h.id, h.family_id, s.stage, s.cylinder, s.side, s.valve, s.measurement, s.value, s.measured_at, s.measured_by, s.instrument_id, ${batchId}::uuid
+		select ${shopId}::uuid, s.head_id, s.family_id, s.stage, s.cylinder, s.side, s.valve, s.measurement, s.value, s.measured_at, s.measured_by, s.instrument_id, ${batchId}::uuid
 		from import_stage s
-		join heads h on h.shop_id = ${shopId} and h.serial = s.serial
 		where not s.known and s.reason is null and not s.bad`;
 	const again = await t`
 		insert into readings (shop_id, head_id, family_id, stage, cylinder, side, valve, measurement, value, measured_at, measured_by, instrument_id, batch_id)
-		select ${shopId}::uuid, h.id, h.family_id, s.stage, s.cylinder, s.side, s.valve, s.measurement, s.value, s.measured_at, s.measured_by, s.instrument_id, ${batchId}::uuid
+		select ${shopId}::uuid, s.head_id, s.family_id, s.stage, s.cylinder, s.side, s.valve, s.measurement, s.value, s.measured_at, s.measured_by, s.instrument_id, ${batchId}::uuid
 		from import_stage s
-		join heads h on h.shop_id = ${shopId} and h.serial = s.serial
 		where s.known and s.reason is null and not s.bad
 		on conflict on constraint readings_identity_key do nothing`;
 	info.tm.mark('sql_insert_readings');
