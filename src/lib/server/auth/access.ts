@@ -53,7 +53,17 @@ export const POLICY: Record<string, RoutePolicy> = {
 	'/api/v1/imports/[id]': { GET: 'machinist', DELETE: 'engineer' },
 	'/api/v1/imports/[id]/rejects.csv': { GET: 'machinist' },
 	'/api/v1/imports/headers': { POST: 'machinist' },
-	'/(app)/imports': { GET: 'machinist', 'action:undo': 'engineer' }
+	'/(app)/imports': { GET: 'machinist', 'action:undo': 'engineer' },
+	'/api/v1/check': { GET: 'viewer' },
+	'/api/v1/stats/capability': { GET: 'viewer' },
+	'/api/v1/stats/comebacks': { GET: 'viewer' },
+	'/api/v1/stats/compare': { GET: 'viewer' },
+	'/api/v1/stats/control': { GET: 'viewer' },
+	'/api/v1/stats/distribution': { GET: 'viewer' },
+	'/api/v1/stats/outliers': { GET: 'viewer' },
+	'/api/v1/stats/rates': { GET: 'viewer' },
+	'/api/v1/stats/wear': { GET: 'viewer' },
+	'/api/v1/stats/describe': { POST: 'viewer' }
 };
 
 /** Which operation a request is: its method, or `action:<name>` for a form action POST. */

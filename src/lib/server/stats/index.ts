@@ -68,3 +68,11 @@ export {
 	type SpecLimits
 } from './capability';
 export { linearFit, type BandPoint, type LinearFit } from './regression';
+export {
+	countBeyond,
+	expandCounts,
+	summarizeCounts,
+	summarizeSorted,
+	type FrequencySummary,
+	type ValueCount
+} from './frequency';

@@ -10,3 +10,4 @@ export * from './tokens';
 export * from './audit';
 export * from './mail';
 export * from './access';
+export * from './stats';

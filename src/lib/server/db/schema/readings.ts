@@ -39,7 +39,17 @@ export const readings = pgTable(
 		measuredAt: timestamp({ withTimezone: true }).notNull(),
 		measuredBy: text().notNull(),
 		instrumentId: uuid(),
-		batchId: uuid()
+		batchId: uuid(),
+		/**
+		 * measurement × stage × side as one small integer (lapmark_series() in
+		 * drizzle/0003_stats_summaries.sql; seriesKey() in $lib/server/db/series.ts). Row-level
+		 * security lets an index use only leakproof comparisons, and enum equality is not marked
+		 * leakproof, so `measurement = …` can never narrow an index scan on this table;
+		 * `series_key = …` can.
+		 */
+		seriesKey: smallint()
+			.notNull()
+			.generatedAlwaysAs(sql`lapmark_series(measurement, stage, side)`)
 	},
 	(t) => [
 		foreignKey({
@@ -62,6 +72,7 @@ export const readings = pgTable(
 		unique('readings_identity_key').on(t.headId, t.stage, t.cylinder, t.side, t.valve, t.measurement, t.measuredAt),
 		index('readings_analytics_idx').on(t.shopId, t.measurement, t.stage, t.side, t.familyId),
 		index('readings_batch_idx').on(t.batchId),
+		index('readings_series_idx').on(t.shopId, t.seriesKey, t.familyId, t.measuredAt),
 		check('readings_cylinder_range', sql`${t.cylinder} between 1 and 16`),
 		check('readings_valve_range', sql`${t.valve} between 1 and 3`),
 		check('readings_value_finite', sql`${t.value} >= 0 and ${t.value} < 'Infinity'::float8`),

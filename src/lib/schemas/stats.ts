@@ -1,0 +1,230 @@
+// Query strings and bodies of the statistics API (/api/v1/stats/*, /api/v1/check). Shared by
+// client and server: the charts build their URLs from the same names.
+import { z } from 'zod';
+import { MEASUREMENTS, SIDES, STAGES, isUnit, type Measurement, type Unit } from '../measurements';
+
+/** Decision kinds, as the database's decision_kind enum (db/schema/enums.ts). */
+export const DECISION_KIND_NAMES = [
+	'reuse',
+	'lap',
+	'recut_seat',
+	'reface_valve',
+	'replace_valve',
+	'replace_seat',
+	'replace_guide',
+	'knurl_guide'
+] as const;
+export type DecisionKindName = (typeof DECISION_KIND_NAMES)[number];
+
+/** Most values one POST /api/v1/stats/describe accepts. */
+export const DESCRIBE_MAX_VALUES = 100_000;
+/** Points a wear chart gets at most; more readings are sampled deterministically. */
+export const WEAR_MAX_POINTS = 5000;
+
+const list = (xs: readonly string[]) => xs.join(', ');
+
+const familyCode = z
+	.string()
+	.trim()
+	.regex(/^[A-Za-z0-9][A-Za-z0-9._-]{0,31}$/, 'family must be an engine family code, such as ALDER-4');
+const measurement = z.enum(MEASUREMENTS, { message: `measurement must be one of: ${list(MEASUREMENTS)}` });
+const side = z.enum(SIDES, { message: `side must be one of: ${list(SIDES)}` });
+const stage = z.enum(STAGES, { message: `stage must be one of: ${list(STAGES)}` });
+
+function validDay(s: string): boolean {
+	const d = new Date(`${s}T00:00:00Z`);
+	return !Number.isNaN(d.getTime()) && d.toISOString().slice(0, 10) === s;
+}
+const day = (name: string) =>
+	z
+		.string()
+		.regex(/^\d{4}-\d{2}-\d{2}$/, `${name} must be a date like 2026-01-31`)
+		.refine(validDay, `${name} is not a calendar date`);
+
+const wholeNumber = (name: string, max: number) =>
+	z
+		.string()
+		.trim()
+		.regex(/^\d+$/, `${name} must be a whole number`)
+		.transform(Number)
+		.refine((n) => n <= max, `${name} must be at most ${max}`);
+
+/** A decimal number as typed (a point, not a comma), finite. */
+const decimal = (name: string) =>
+	z
+		.string()
+		.trim()
+		.regex(/^[+-]?(\d+(\.\d*)?|\.\d+)([eE][+-]?\d+)?$/, `${name} must be a number, such as 0.065`)
+		.transform(Number)
+		.refine(Number.isFinite, `${name} is too large`);
+
+/** The filters every statistics route understands, with the names the page URLs use. */
+const filterShape = {
+	family: familyCode.optional(),
+	side: side.optional(),
+	stage: stage.optional(),
+	/** First day (UTC) of measured_at, inclusive. */
+	from: day('from').optional(),
+	/** Last day (UTC) of measured_at, inclusive. */
+	to: day('to').optional(),
+	/** Who measured (readings.measured_by), case-insensitive. */
+	machinist: z.string().trim().min(1).max(120, 'machinist is at most 120 characters').optional(),
+	/** The head's customer, case-insensitive. */
+	customer: z.string().trim().min(1).max(200, 'customer is at most 200 characters').optional(),
+	mileageMin: wholeNumber('mileageMin', 5_000_000).optional(),
+	mileageMax: wholeNumber('mileageMax', 5_000_000).optional()
+};
+
+type Ranged = { from?: string; to?: string; mileageMin?: number; mileageMax?: number };
+function checkRanges(v: Ranged, ctx: z.RefinementCtx) {
+	if (v.from && v.to && v.from > v.to) ctx.addIssue({ code: 'custom', message: 'from must not be after to', path: ['from'] });
+	if (v.mileageMin !== undefined && v.mileageMax !== undefined && v.mileageMin > v.mileageMax) {
+		ctx.addIssue({ code: 'custom', message: 'mileageMin must not be above mileageMax', path: ['mileageMin'] });
+	}
+}
+
+export const filtersSchema = z.strictObject(filterShape).superRefine(checkRanges);
+export type StatsFilters = z.infer<typeof filtersSchema>;
+
+/** GET /api/v1/stats/distribution */
+export const distributionQuerySchema = z.strictObject({ ...filterShape, measurement }).superRefine(checkRanges);
+export type DistributionQuery = z.infer<typeof distributionQuerySchema>;
+
+/** GET /api/v1/stats/compare: every family side by side. */
+const { family: _family, ...withoutFamily } = filterShape;
+export const compareQuerySchema = z.strictObject({ ...withoutFamily, measurement }).superRefine(checkRanges);
+export type CompareQuery = z.infer<typeof compareQuerySchema>;
+
+/** GET /api/v1/check: one reading against its family's limits and fleet. */
+export const checkQuerySchema = z
+	.strictObject({
+		family: familyCode,
+		side,
+		stage: stage.default('as_received'),
+		measurement,
+		value: decimal('value'),
+		unit: z
+			.string()
+			.trim()
+			.refine(isUnit, 'unit must be one of: mm, in, um, uin, pct, s')
+			.transform((u) => u as Unit)
+			.optional()
+	})
+	.superRefine((v, ctx) => {
+		if (v.value < 0) ctx.addIssue({ code: 'custom', message: 'value must not be negative', path: ['value'] });
+	});
+export type CheckQuery = z.infer<typeof checkQuerySchema>;
+
+export const OUTLIER_SORTS = ['measuredAt', '-measuredAt', 'value', '-value', 'z', '-z'] as const;
+export type OutlierSort = (typeof OUTLIER_SORTS)[number];
+
+/** GET /api/v1/stats/outliers */
+export const outliersQuerySchema = z
+	.strictObject({
+		...filterShape,
+		measurement,
+		page: wholeNumber('page', 1_000_000).refine((n) => n >= 1, 'page starts at 1').default(1),
+		pageSize: wholeNumber('pageSize', 500).refine((n) => n >= 1, 'pageSize must be at least 1').default(50),
+		/** `z` sorts by |modified z|; a leading minus sorts descending. */
+		sort: z.enum(OUTLIER_SORTS, { message: `sort must be one of: ${list(OUTLIER_SORTS)}` }).default('-measuredAt')
+	})
+	.superRefine(checkRanges);
+export type OutliersQuery = z.infer<typeof outliersQuerySchema>;
+
+/** What a failure is: a measurement outside its limits, or a decision of one kind. */
+export type RateCheck = { kind: 'measurement'; measurement: Measurement } | { kind: 'decision'; decision: DecisionKindName };
+
+const rateCheck = z.string().trim().transform((s, ctx): RateCheck => {
+	if ((MEASUREMENTS as readonly string[]).includes(s)) return { kind: 'measurement', measurement: s as Measurement };
+	const m = /^decision:(\w+)$/.exec(s);
+	if (m && (DECISION_KIND_NAMES as readonly string[]).includes(m[1])) return { kind: 'decision', decision: m[1] as DecisionKindName };
+	ctx.addIssue({
+		code: 'custom',
+		message: `check must be a measurement (${list(MEASUREMENTS)}) or decision:<kind> (${list(DECISION_KIND_NAMES)})`
+	});
+	return z.NEVER;
+});
+
+/** GET /api/v1/stats/rates */
+export const ratesQuerySchema = z
+	.strictObject({ ...filterShape, check: rateCheck })
+	.superRefine(checkRanges)
+	.superRefine((v, ctx) => {
+		if (v.check.kind === 'decision') {
+			if (v.stage) ctx.addIssue({ code: 'custom', message: 'stage does not apply to a decision check', path: ['stage'] });
+			if (v.machinist) {
+				ctx.addIssue({ code: 'custom', message: 'machinist does not apply to a decision check (decisions are not measurements)', path: ['machinist'] });
+			}
+		}
+	});
+export type RatesQuery = z.infer<typeof ratesQuerySchema>;
+
+/** GET /api/v1/stats/comebacks: released heads and how many came back. */
+export const comebacksQuerySchema = z
+	.strictObject({
+		family: filterShape.family,
+		/** Released on or after (UTC day). */
+		from: filterShape.from,
+		to: filterShape.to,
+		customer: filterShape.customer,
+		mileageMin: filterShape.mileageMin,
+		mileageMax: filterShape.mileageMax
+	})
+	.superRefine(checkRanges);
+export type ComebacksQuery = z.infer<typeof comebacksQuerySchema>;
+
+/** GET /api/v1/stats/capability: the shop's own rework against the final-stage limits. */
+export const capabilityQuerySchema = z
+	.strictObject({
+		...filterShape,
+		family: familyCode,
+		side,
+		measurement,
+		stage: z.literal('final', { message: 'capability is judged on final-stage readings: stage must be final' }).default('final')
+	})
+	.superRefine(checkRanges);
+export type CapabilityQuery = z.infer<typeof capabilityQuerySchema>;
+
+/** GET /api/v1/stats/control: individuals and moving-range chart. */
+export const controlQuerySchema = z
+	.strictObject({
+		...filterShape,
+		family: familyCode,
+		side,
+		measurement,
+		stage: stage.default('final'),
+		/** The most recent readings charted (the limits come from the same readings). */
+		limit: wholeNumber('limit', 10_000).refine((n) => n >= 2, 'limit must be at least 2').default(1000)
+	})
+	.superRefine(checkRanges);
+export type ControlQuery = z.infer<typeof controlQuerySchema>;
+
+/** GET /api/v1/stats/wear: a measurement against the head's mileage. */
+export const wearQuerySchema = z
+	.strictObject({ ...filterShape, measurement: measurement.default('clearance'), stage: stage.default('as_received') })
+	.superRefine(checkRanges);
+export type WearQuery = z.infer<typeof wearQuerySchema>;
+
+/** POST /api/v1/stats/describe: a JSON array of finite numbers. */
+export const describeBodySchema = z
+	.array(z.number({ message: 'every element must be a finite number' }), {
+		message: 'send a JSON array of numbers, such as [0.051, 0.048, 0.062]'
+	})
+	.max(DESCRIBE_MAX_VALUES, `at most ${DESCRIBE_MAX_VALUES} numbers`);
+
+/** A URL's query string as an object for safeParse: empty parameters mean "not given". */
+export function queryObject(params: URLSearchParams): Record<string, string> {
+	return Object.fromEntries([...params].filter(([, v]) => v.trim() !== ''));
+}
+
+/** One message for a failed parse, naming the parameters. */
+export function issuesMessage(issues: readonly z.core.$ZodIssue[]): string {
+	return issues
+		.map((i) => {
+			if (i.code === 'unrecognized_keys') return `unknown parameter${i.keys.length > 1 ? 's' : ''}: ${i.keys.join(', ')}`;
+			const name = i.path.join('.');
+			if (i.code === 'invalid_type' && name && /received undefined/.test(i.message)) return `${name} is required`;
+			return i.message;
+		})
+		.join('; ');
+}

@@ -1,0 +1,63 @@
+import { sql } from 'drizzle-orm';
+import { check, date, doublePrecision, integer, pgTable, primaryKey, smallint, uuid } from 'drizzle-orm/pg-core';
+
+// Per-group summaries of `readings`, kept current by statement-level triggers on readings
+// (drizzle/0003_stats_summaries.sql), so the statistics routes never rescan every reading.
+// A group is shop × series (measurement × stage × side) × family × calendar month (UTC) of
+// measured_at. Keys are leakproof types only (uuid, smallint, date, float8), so that under
+// row-level security every key column can narrow an index scan.
+//
+// These tables hold derived data only: a row exists while readings of its group exist, and the
+// triggers delete it when the last one goes. They have no foreign keys on purpose: during a
+// cascaded delete (a shop, a head) the triggers rewrite them while the parent rows are already
+// gone, which a foreign key would refuse.
+
+/** Count, mean and M2 = Σ(x − mean)² per group-month (Chan, Golub & LeVeque merge on insert). */
+export const readingSummaries = pgTable(
+	'reading_summaries',
+	{
+		shopId: uuid().notNull(),
+		/** measurement × stage × side, as readings.series_key. */
+		seriesKey: smallint().notNull(),
+		familyId: uuid().notNull(),
+		/** First day of the month (UTC) the readings were taken in. */
+		month: date().notNull(),
+		n: integer().notNull(),
+		mean: doublePrecision().notNull(),
+		m2: doublePrecision().notNull(),
+		min: doublePrecision().notNull(),
+		max: doublePrecision().notNull()
+	},
+	(t) => [
+		primaryKey({ name: 'reading_summaries_pkey', columns: [t.shopId, t.seriesKey, t.familyId, t.month] }),
+		check('reading_summaries_n_positive', sql`${t.n} > 0`),
+		check('reading_summaries_m2_non_negative', sql`${t.m2} >= 0`)
+	]
+);
+export type ReadingSummary = typeof readingSummaries.$inferSelect;
+
+/**
+ * Exact frequency table per group-month: how many readings had each value. Readings are
+ * quantised at the gauge's resolution, so the table is much smaller than the readings and gives
+ * exact type-7 quantiles, MAD, histograms and counts beyond any threshold.
+ */
+export const readingValueCounts = pgTable(
+	'reading_value_counts',
+	{
+		shopId: uuid().notNull(),
+		/** measurement × stage × side, as readings.series_key. */
+		seriesKey: smallint().notNull(),
+		familyId: uuid().notNull(),
+		month: date().notNull(),
+		value: doublePrecision().notNull(),
+		n: integer().notNull()
+	},
+	(t) => [
+		primaryKey({
+			name: 'reading_value_counts_pkey',
+			columns: [t.shopId, t.seriesKey, t.familyId, t.month, t.value]
+		}),
+		check('reading_value_counts_n_non_negative', sql`${t.n} >= 0`)
+	]
+);
+export type ReadingValueCount = typeof readingValueCounts.$inferSelect;
