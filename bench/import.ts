@@ -138,12 +138,12 @@ console.log(`[bench] API import, wide: ${wide.body.readings} readings in ${wide.
 const longResolved = join(out, 'readings-long.csv');
 runPsql(`\\copy (select shop_id, head_id, family_id, stage, cylinder, side, valve, measurement, value, measured_at, measured_by, instrument_id, batch_id from readings) to '${longResolved}' csv header`);
 const COLS = 'shop_id, head_id, family_id, stage, cylinder, side, valve, measurement, value, measured_at, measured_by, instrument_id, batch_id';
-runPsql(`create table bench_readings (like readings including defaults including identity including constraints including indexes)`);
+runPsql(`create table bench_readings (like readings including defaults including identity including generated including constraints including indexes)`);
 const psqlSeconds = runPsql(`\\copy bench_readings (${COLS}) from '${longResolved}' csv header`);
 console.log(`[bench] psql \\copy of the same ${readings.toLocaleString('en-US')} readings (long CSV, same columns, checks and indexes): ${psqlSeconds.toFixed(2)} s = ${Math.round(readings / psqlSeconds).toLocaleString('en-US')} readings/s`);
 // The same table with readings' foreign keys too (row-level security cannot be matched: PostgreSQL
 // refuses COPY FROM into a table under it, which is why the import stages first).
-runPsql(`create table bench_readings_fk (like readings including defaults including identity including constraints including indexes)`);
+runPsql(`create table bench_readings_fk (like readings including defaults including identity including generated including constraints including indexes)`);
 runPsql(`alter table bench_readings_fk add foreign key (shop_id, head_id, family_id) references heads (shop_id, id, family_id),
 	add foreign key (shop_id, instrument_id) references instruments (shop_id, id), add foreign key (shop_id, batch_id) references import_batches (shop_id, id)`);
 const psqlFkSeconds = runPsql(`\\copy bench_readings_fk (${COLS}) from '${longResolved}' csv header`);
