@@ -152,8 +152,9 @@ BEGIN
 			SELECT shop_id, series_key, family_id, lapmark_month(measured_at) AS month, value, count(*)::int AS n
 			FROM new_rows GROUP BY 1, 2, 3, 4, 5
 		), counted AS (
+			-- In key order, so a group's rows share heap pages and a read touches few of them.
 			INSERT INTO reading_value_counts AS c (shop_id, series_key, family_id, month, value, n)
-			SELECT shop_id, series_key, family_id, month, value, n FROM d
+			SELECT shop_id, series_key, family_id, month, value, n FROM d ORDER BY 1, 2, 3, 4, 5
 			ON CONFLICT ON CONSTRAINT reading_value_counts_pkey DO UPDATE SET n = c.n + excluded.n
 		), b AS (
 			-- Count, mean and M2 of the new rows per group-month.
@@ -168,7 +169,7 @@ BEGIN
 			GROUP BY shop_id, series_key, family_id, month
 		)
 		INSERT INTO reading_summaries AS s (shop_id, series_key, family_id, month, n, mean, m2, min, max)
-		SELECT shop_id, series_key, family_id, month, n, mean, m2, min, max FROM b
+		SELECT shop_id, series_key, family_id, month, n, mean, m2, min, max FROM b ORDER BY 1, 2, 3, 4
 		ON CONFLICT ON CONSTRAINT reading_summaries_pkey DO UPDATE SET
 			n = s.n + excluded.n,
 			mean = s.mean + (excluded.mean - s.mean) * (excluded.n::float8 / (s.n + excluded.n)),
@@ -204,10 +205,10 @@ SELECT set_config('lapmark.system', 'on', true);
 --> statement-breakpoint
 INSERT INTO reading_value_counts (shop_id, series_key, family_id, month, value, n)
 SELECT shop_id, series_key, family_id, lapmark_month(measured_at), value, count(*)::int
-FROM readings GROUP BY 1, 2, 3, 4, 5;
+FROM readings GROUP BY 1, 2, 3, 4, 5 ORDER BY 1, 2, 3, 4, 5;
 --> statement-breakpoint
 INSERT INTO reading_summaries (shop_id, series_key, family_id, month, n, mean, m2, min, max)
 SELECT shop_id, series_key, family_id, lapmark_month(measured_at), count(*)::int, avg(value), var_pop(value) * count(*), min(value), max(value)
-FROM readings GROUP BY 1, 2, 3, 4;
+FROM readings GROUP BY 1, 2, 3, 4 ORDER BY 1, 2, 3, 4;
 --> statement-breakpoint
 SELECT set_config('lapmark.system', '', true);

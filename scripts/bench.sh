@@ -1,26 +1,39 @@
 #!/usr/bin/env bash
-# npm run bench:<name>: a scratch database in the private cluster, the built app, then
-# bench/<name>.ts, which prints its figures and ends with one line of JSON.
+# npm run bench:<name>: bench/<name>.ts against a scratch database of its own in the private
+# cluster (lapmark_bench_<name>, migrated, dropped afterwards; KEEP_BENCH_DB=1 keeps it) and a
+# fresh build of the app. Each bench prints its figures and ends with one line of JSON.
+#   bash scripts/bench.sh import    the CSV import against psql \copy (bench/import.ts)
+#   bash scripts/bench.sh stats     statistics routes over HTTP against bare SQL (bench/stats.ts)
+# The bench gets DATABASE_URL and BENCH_DATABASE_URL (the scratch database), PSQL and BENCH_PSQL.
 set -euo pipefail
 cd "$(dirname "$0")/.."
 . scripts/common.sh
 
-NAME=${1:?usage: bash scripts/bench.sh import|stats}
-[ -f "bench/$NAME.ts" ] || { log "no benchmark bench/$NAME.ts"; exit 2; }
-STARTED=
-cleanup() {
-	[ -n "${KEEP_BENCH_DB:-}" ] || pg_drop_database "$DB" >/dev/null 2>&1 || true
-	[ -n "$STARTED" ] && pg_stop
-}
+NAME=${1:-}
+case "$NAME" in
+	stats | import) SCRIPT="bench/$NAME.ts" ;;
+	*) echo "usage: bash scripts/bench.sh import|stats [arguments for the bench]" >&2; exit 2 ;;
+esac
+shift
+[ -f "$SCRIPT" ] || { log "$SCRIPT is not in this checkout"; exit 2; }
+
 ensure_deps
+# Always the private cluster, never an outside DATABASE_URL: the bench drops and refills its database.
+unset DATABASE_URL
 pg_ensure_installed && pg_init
+STARTED=
 if ! pg_running; then pg_start; STARTED=1; fi
 DB=lapmark_bench_$NAME
+cleanup() {
+	if [ -z "${KEEP_BENCH_DB:-}${BENCH_KEEP:-}" ]; then pg_drop_database "$DB" >/dev/null 2>&1 || true; fi
+	if [ -n "$STARTED" ]; then pg_stop; fi
+}
 trap cleanup EXIT
 pg_drop_database "$DB" >/dev/null
 pg_ensure_database "$DB"
-export DATABASE_URL; DATABASE_URL=$(pg_url "$DB")
-export PSQL="$PG_BIN/psql" AUTH_SECRET=${AUTH_SECRET:-bench-secret-$(head -c 24 /dev/urandom | base64 | tr -d '\n/+=')}
+DATABASE_URL=$(pg_url "$DB")
+export DATABASE_URL BENCH_DATABASE_URL=$DATABASE_URL PSQL="$PG_BIN/psql" BENCH_PSQL="$PG_BIN/psql"
+export AUTH_SECRET=${AUTH_SECRET:-bench-secret-$(head -c 24 /dev/urandom | base64 | tr -d '\n/+=')}
 npx tsx scripts/migrate.ts >/dev/null
 ensure_build
-npx tsx "bench/$NAME.ts"
+npx tsx "$SCRIPT" "$@"

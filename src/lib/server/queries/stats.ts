@@ -38,14 +38,17 @@ export type LimitRow = {
 	effectiveFrom: string;
 };
 
-/** The limit versions in force on `day`, one per family × series. */
-export async function limitsOn(conn: Conn, shopId: string, day: string): Promise<LimitRow[]> {
+/** The limit versions in force on `day`, one per family × series (optionally only some). */
+export async function limitsOn(conn: Conn, shopId: string, day: string, only?: { familyIds?: string[] | null; keys?: number[] }): Promise<LimitRow[]> {
+	const where: SQL[] = [sql`shop_id = ${shopId}`, sql`effective_from <= ${day}::date`];
+	if (only?.familyIds) where.push(sql`family_id = any(${pgArray(only.familyIds)}::uuid[])`);
+	if (only?.keys) where.push(sql`lapmark_series(measurement, stage, side) = any(${pgArray(only.keys)}::int2[])`);
 	return conn.execute<LimitRow>(sql`
 		select distinct on (family_id, measurement, side, stage)
 			family_id as "familyId", lapmark_series(measurement, stage, side) as key, min, max,
 			effective_from::text as "effectiveFrom"
 		from limits
-		where shop_id = ${shopId} and effective_from <= ${day}::date
+		where ${sql.join(where, sql` and `)}
 		order by family_id, measurement, side, stage, effective_from desc`);
 }
 

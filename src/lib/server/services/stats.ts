@@ -129,8 +129,8 @@ function selection(q: Partial<StatsFilters>, keys: number[], family: FamilyRef |
 
 const limitKey = (familyId: string, key: number) => `${familyId}|${key}`;
 
-async function limitsMap(conn: Conn, shopId: string, day: string): Promise<Map<string, LimitRow>> {
-	const rows = await limitsOn(conn, shopId, day);
+async function limitsMap(conn: Conn, shopId: string, day: string, only?: { familyIds?: string[] | null; keys?: number[] }): Promise<Map<string, LimitRow>> {
+	const rows = await limitsOn(conn, shopId, day, only);
 	return new Map(rows.map((l) => [limitKey(l.familyId, l.key), l]));
 }
 
@@ -181,9 +181,10 @@ export async function distribution(conn: Conn, shopId: string, q: DistributionQu
 	const { family } = await resolveFamily(conn, shopId, q.family);
 	const keys = seriesKeys(q.measurement, q.stage, q.side);
 	const asOf = q.to ?? today();
+	const sel = selection(q, keys, family);
 	const [{ groups, source }, limits] = await Promise.all([
-		groupData(conn, shopId, selection(q, keys, family), opts),
-		limitsMap(conn, shopId, asOf)
+		groupData(conn, shopId, sel, opts),
+		limitsMap(conn, shopId, asOf, { familyIds: sel.familyIds, keys })
 	]);
 	const single = family && q.side && q.stage ? (limits.get(limitKey(family.id, keys[0])) ?? null) : null;
 	return {
@@ -202,7 +203,7 @@ export async function compare(conn: Conn, shopId: string, q: CompareQuery, opts:
 	const asOf = q.to ?? today();
 	const [{ groups, source }, limits] = await Promise.all([
 		groupData(conn, shopId, selection(q, keys, null), opts),
-		limitsMap(conn, shopId, asOf)
+		limitsMap(conn, shopId, asOf, { keys })
 	]);
 	const perFamily = new Map<string, GroupData[]>();
 	for (const g of groups) perFamily.set(g.familyId, [...(perFamily.get(g.familyId) ?? []), g]);
@@ -236,7 +237,7 @@ export async function checkReading(conn: Conn, shopId: string, q: CheckQuery): P
 	const key = seriesKey(q.measurement, q.stage, q.side);
 	const [{ groups }, limits] = await Promise.all([
 		groupData(conn, shopId, selection({}, [key], fam)),
-		limitsMap(conn, shopId, today())
+		limitsMap(conn, shopId, today(), { familyIds: [fam.id], keys: [key, seriesKey(q.measurement, 'final', q.side)] })
 	]);
 	const limit = limits.get(limitKey(fam.id, key)) ?? null;
 	const rework = q.stage === 'as_received' ? (limits.get(limitKey(fam.id, seriesKey(q.measurement, 'final', q.side))) ?? null) : null;
@@ -452,7 +453,7 @@ export async function capabilityStudy(conn: Conn, shopId: string, q: CapabilityQ
 	const asOf = q.to ?? today();
 	const [rows, limits] = await Promise.all([
 		readingsInTimeOrder(conn, shopId, selection(q, [key], fam)),
-		limitsMap(conn, shopId, asOf)
+		limitsMap(conn, shopId, asOf, { familyIds: [fam.id], keys: [key] })
 	]);
 	const limit = limits.get(limitKey(fam.id, key)) ?? null;
 	if (limit && limit.min !== null && limit.max !== null && !(limit.min < limit.max)) {
@@ -481,7 +482,7 @@ export async function control(conn: Conn, shopId: string, q: ControlQuery): Prom
 	const key = seriesKey(q.measurement, q.stage, q.side);
 	const [rows, limits] = await Promise.all([
 		readingsInTimeOrder(conn, shopId, selection(q, [key], fam), q.limit),
-		limitsMap(conn, shopId, q.to ?? today())
+		limitsMap(conn, shopId, q.to ?? today(), { familyIds: [fam.id], keys: [key] })
 	]);
 	const chart = controlChart(rows.map((r) => ({ t: new Date(r.measuredAt).getTime(), value: r.value })));
 	const beyond = new Set(chart.beyondLimits);
