@@ -184,13 +184,14 @@ type MomentRow = {
 
 /**
  * Moments and frequency tables of every family × series in the selection. `source: 'readings'`
- * ignores the summaries (the tests compare both ways).
+ * ignores the summaries (the tests compare both ways); `moments: false` leaves the moments empty
+ * when only the frequency tables are needed.
  */
 export async function groupData(
 	conn: Conn,
 	shopId: string,
 	sel: Selection,
-	opts: { source?: 'auto' | 'readings' } = {}
+	opts: { source?: 'auto' | 'readings'; moments?: boolean } = {}
 ): Promise<{ groups: GroupData[]; source: DataSource }> {
 	const acc = new Map<string, { familyId: string; key: number; moments: Moments | null; counts: Map<number, number>; edge: Map<number, number> }>();
 	const slot = (familyId: string, key: number) => {
@@ -225,9 +226,11 @@ export async function groupData(
 			if (win.months.end) where.push(sql`month < ${win.months.end}::date`);
 			const cond = sql.join(where, sql` and `);
 			const [moments, counts] = await Promise.all([
-				conn.execute<MomentRow>(sql`
-					select family_id as "familyId", series_key as key, n, mean, m2, min, max
-					from reading_summaries where ${cond}`),
+				opts.moments === false
+					? ([] as MomentRow[])
+					: conn.execute<MomentRow>(sql`
+							select family_id as "familyId", series_key as key, n, mean, m2, min, max
+							from reading_summaries where ${cond}`),
 				conn.execute<CountRow>(sql`
 					select family_id as "familyId", series_key as key, value, sum(n)::int as n
 					from reading_value_counts where ${cond}
@@ -248,7 +251,7 @@ export async function groupData(
 		const counts = [...s.counts].filter(([, n]) => n > 0).sort((a, b) => a[0] - b[0]) as ValueCount[];
 		// Readings read directly (the whole selection, or the edges of the date range): their
 		// moments by the two-pass formula, merged into the stored ones (Chan et al.).
-		const edge = s.edge.size ? momentsOf(expandCounts([...s.edge].sort((a, b) => a[0] - b[0]))) : null;
+		const edge = s.edge.size && opts.moments !== false ? momentsOf(expandCounts([...s.edge].sort((a, b) => a[0] - b[0]))) : null;
 		const moments = s.moments && edge ? mergeMoments(s.moments, edge) : (s.moments ?? edge ?? momentsOf([]));
 		groups.push({ familyId: s.familyId, key: s.key, moments, counts });
 	}
