@@ -371,17 +371,18 @@ export async function measurementTallies(conn: Conn, shopId: string, sel: Select
 	return conn.execute<PositionTally>(sql`
 		with lv as (${LIMIT_VERSIONS}),
 		pos as (
-			select r.family_id, r.side, r.cylinder,
+			-- Only columns of readings_series_idx, so the scan is index-only (side is in series_key).
+			select r.family_id, r.series_key, r.cylinder,
 				bool_or(r.value < coalesce(lv.min, '-Infinity') or r.value > coalesce(lv.max, 'Infinity')) as failed
 			from readings r
 			join lv on lv.family_id = r.family_id and lapmark_series(lv.measurement, lv.stage, lv.side) = r.series_key
 				and lv.effective_from <= (r.measured_at at time zone 'UTC')::date
 				and (lv.effective_to is null or lv.effective_to > (r.measured_at at time zone 'UTC')::date)
 			where ${readingsWhere(shopId, sel)}
-			group by r.head_id, r.family_id, r.side, r.cylinder, r.valve
+			group by r.head_id, r.family_id, r.series_key, r.cylinder, r.valve
 		)
-		select family_id as "familyId", side, cylinder::int as cylinder, count(*)::int as n,
-			count(*) filter (where failed)::int as failures
+		select family_id as "familyId", case when series_key % 2 = 1 then 'exhaust' else 'intake' end as side,
+			cylinder::int as cylinder, count(*)::int as n, count(*) filter (where failed)::int as failures
 		from pos group by 1, 2, 3 order by 1, 2, 3`);
 }
 
