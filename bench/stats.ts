@@ -150,19 +150,24 @@ const bare = {
 			where r.value < coalesce(lim.min, '-Infinity') or r.value > coalesce(lim.max, 'Infinity') group by 1)
 		select s.*, m.mad, m.tukey, coalesce(o.outside, 0) as outside
 		from s join m using (family_id) left join o using (family_id) order by s.q[3]`,
-	rates: (series: string) => `
+	rates: (series: string) => {
+		// With series_key the query can stay on readings_series_idx's columns, as the route's does;
+		// on enum columns it joins the limits on them and groups by side.
+		const keyed = series.includes('series_key');
+		return `
 		with lv as (select l.*, lead(l.effective_from) over (partition by l.family_id, l.measurement, l.side, l.stage order by l.effective_from) as effective_to from limits l),
 		pos as (
-			select r.family_id, r.side, r.cylinder,
+			select r.family_id, ${keyed ? 'r.series_key' : 'r.side'} as s, r.cylinder,
 				bool_or(r.value < coalesce(lv.min, '-Infinity') or r.value > coalesce(lv.max, 'Infinity')) as failed
 			from readings r
-			join lv on lv.family_id = r.family_id and lv.measurement = r.measurement and lv.stage = r.stage and lv.side = r.side
+			join lv on lv.family_id = r.family_id and ${keyed ? 'lapmark_series(lv.measurement, lv.stage, lv.side) = r.series_key' : 'lv.measurement = r.measurement and lv.stage = r.stage and lv.side = r.side'}
 				and lv.effective_from <= (r.measured_at at time zone 'UTC')::date
 				and (lv.effective_to is null or lv.effective_to > (r.measured_at at time zone 'UTC')::date)
 			where r.shop_id = ${lit(ids.shop)} and ${series}
-			group by r.head_id, r.family_id, r.side, r.cylinder, r.valve
+			group by r.head_id, r.family_id, 2, r.cylinder, r.valve
 		)
-		select family_id, side, cylinder, count(*) as n, count(*) filter (where failed) as failures from pos group by 1, 2, 3`,
+		select family_id, s, cylinder, count(*) as n, count(*) filter (where failed) as failures from pos group by 1, 2, 3`;
+	},
 	check: (series: string) => `
 		with r as (select value from readings where shop_id = ${lit(ids.shop)} and family_id = ${lit(ids.family)} and ${series}),
 		s as (select count(*) as n, count(*) filter (where value < 0.13) as below, count(*) filter (where value = 0.13) as equal,

@@ -47,7 +47,9 @@ LANGUAGE sql IMMUTABLE PARALLEL SAFE STRICT AS $$
 $$;
 --> statement-breakpoint
 ALTER TABLE "readings" ADD COLUMN "series_key" smallint GENERATED ALWAYS AS (lapmark_series(measurement, stage, side)) STORED NOT NULL;--> statement-breakpoint
-CREATE INDEX "readings_series_idx" ON "readings" USING btree ("shop_id","series_key","family_id","measured_at");
+-- Covering: value and the valve position ride along, so rates, capability, control charts and the
+-- month edges of distributions read this index alone (an index-only scan), not the heap.
+CREATE INDEX "readings_series_idx" ON "readings" USING btree ("shop_id","series_key","family_id","measured_at") INCLUDE ("value","head_id","cylinder","valve");
 --> statement-breakpoint
 -- Room on each page for in-place (HOT) updates: every import and undo rewrites counts.
 ALTER TABLE "reading_summaries" SET (fillfactor = 70);

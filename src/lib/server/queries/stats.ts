@@ -184,13 +184,14 @@ type MomentRow = {
 
 /**
  * Moments and frequency tables of every family × series in the selection. `source: 'readings'`
- * ignores the summaries (the tests compare both ways).
+ * ignores the summaries (the tests compare both ways); `moments: false` leaves the moments empty
+ * when only the frequency tables are needed.
  */
 export async function groupData(
 	conn: Conn,
 	shopId: string,
 	sel: Selection,
-	opts: { source?: 'auto' | 'readings' } = {}
+	opts: { source?: 'auto' | 'readings'; moments?: boolean } = {}
 ): Promise<{ groups: GroupData[]; source: DataSource }> {
 	const acc = new Map<string, { familyId: string; key: number; moments: Moments | null; counts: Map<number, number>; edge: Map<number, number> }>();
 	const slot = (familyId: string, key: number) => {
@@ -225,9 +226,11 @@ export async function groupData(
 			if (win.months.end) where.push(sql`month < ${win.months.end}::date`);
 			const cond = sql.join(where, sql` and `);
 			const [moments, counts] = await Promise.all([
-				conn.execute<MomentRow>(sql`
-					select family_id as "familyId", series_key as key, n, mean, m2, min, max
-					from reading_summaries where ${cond}`),
+				opts.moments === false
+					? ([] as MomentRow[])
+					: conn.execute<MomentRow>(sql`
+							select family_id as "familyId", series_key as key, n, mean, m2, min, max
+							from reading_summaries where ${cond}`),
 				conn.execute<CountRow>(sql`
 					select family_id as "familyId", series_key as key, value, sum(n)::int as n
 					from reading_value_counts where ${cond}
@@ -248,7 +251,7 @@ export async function groupData(
 		const counts = [...s.counts].filter(([, n]) => n > 0).sort((a, b) => a[0] - b[0]) as ValueCount[];
 		// Readings read directly (the whole selection, or the edges of the date range): their
 		// moments by the two-pass formula, merged into the stored ones (Chan et al.).
-		const edge = s.edge.size ? momentsOf(expandCounts([...s.edge].sort((a, b) => a[0] - b[0]))) : null;
+		const edge = s.edge.size && opts.moments !== false ? momentsOf(expandCounts([...s.edge].sort((a, b) => a[0] - b[0]))) : null;
 		const moments = s.moments && edge ? mergeMoments(s.moments, edge) : (s.moments ?? edge ?? momentsOf([]));
 		groups.push({ familyId: s.familyId, key: s.key, moments, counts });
 	}
@@ -368,17 +371,18 @@ export async function measurementTallies(conn: Conn, shopId: string, sel: Select
 	return conn.execute<PositionTally>(sql`
 		with lv as (${LIMIT_VERSIONS}),
 		pos as (
-			select r.family_id, r.side, r.cylinder,
+			-- Only columns of readings_series_idx, so the scan is index-only (side is in series_key).
+			select r.family_id, r.series_key, r.cylinder,
 				bool_or(r.value < coalesce(lv.min, '-Infinity') or r.value > coalesce(lv.max, 'Infinity')) as failed
 			from readings r
 			join lv on lv.family_id = r.family_id and lapmark_series(lv.measurement, lv.stage, lv.side) = r.series_key
 				and lv.effective_from <= (r.measured_at at time zone 'UTC')::date
 				and (lv.effective_to is null or lv.effective_to > (r.measured_at at time zone 'UTC')::date)
 			where ${readingsWhere(shopId, sel)}
-			group by r.head_id, r.family_id, r.side, r.cylinder, r.valve
+			group by r.head_id, r.family_id, r.series_key, r.cylinder, r.valve
 		)
-		select family_id as "familyId", side, cylinder::int as cylinder, count(*)::int as n,
-			count(*) filter (where failed)::int as failures
+		select family_id as "familyId", case when series_key % 2 = 1 then 'exhaust' else 'intake' end as side,
+			cylinder::int as cylinder, count(*)::int as n, count(*) filter (where failed)::int as failures
 		from pos group by 1, 2, 3 order by 1, 2, 3`);
 }
 

@@ -69,6 +69,7 @@ import {
 	momentsOf,
 	outlierReasons,
 	percentileRank,
+	robustOfSorted,
 	summarizeSorted,
 	tukeyFlag,
 	wilson,
@@ -236,15 +237,14 @@ export async function checkReading(conn: Conn, shopId: string, q: CheckQuery): P
 	const fam = family as FamilyRef;
 	const key = seriesKey(q.measurement, q.stage, q.side);
 	const [{ groups }, limits] = await Promise.all([
-		groupData(conn, shopId, selection({}, [key], fam)),
+		groupData(conn, shopId, selection({}, [key], fam), { moments: false }),
 		limitsMap(conn, shopId, today(), { familyIds: [fam.id], keys: [key, seriesKey(q.measurement, 'final', q.side)] })
 	]);
 	const limit = limits.get(limitKey(fam.id, key)) ?? null;
 	const rework = q.stage === 'as_received' ? (limits.get(limitKey(fam.id, seriesKey(q.measurement, 'final', q.side))) ?? null) : null;
-	const fleet = groups[0];
-	const sorted = fleet ? expandCounts(fleet.counts) : [];
-	const s = summarizeSorted(sorted, fleet && sorted.length ? fleet.moments : undefined);
-	const median = s.quantiles.p50;
+	const sorted = groups[0] ? expandCounts(groups[0].counts) : [];
+	const fleet = robustOfSorted(sorted);
+	const { median, mad, fences } = fleet;
 	const over = limit?.max != null && value > limit.max;
 	const under = limit?.min != null && value < limit.min;
 	const rank = percentileRank(sorted, value);
@@ -259,11 +259,11 @@ export async function checkReading(conn: Conn, shopId: string, q: CheckQuery): P
 		limits: limitInfo(limit),
 		withinLimits: limit ? !(over || under) : null,
 		broken: over ? 'max' : under ? 'min' : null,
-		fleet: { n: s.n, median, mad: s.mad, fences: s.fences },
+		fleet,
 		percentile: rank === null ? null : 100 * rank,
-		robustZ: modifiedZ(value, median, s.mad),
-		tukey: tukeyFlag(value, s.fences),
-		reasons: outlierReasons({ value, limits: { min: limit?.min, max: limit?.max }, fences: s.fences, median, mad: s.mad }),
+		robustZ: modifiedZ(value, median, mad),
+		tukey: tukeyFlag(value, fences),
+		reasons: outlierReasons({ value, limits: { min: limit?.min, max: limit?.max }, fences, median, mad }),
 		suggestion: suggestDecision(q.measurement, q.stage, value, limit, rework),
 		caution: CAUTION
 	};

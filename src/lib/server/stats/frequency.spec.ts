@@ -1,6 +1,6 @@
 import fc from 'fast-check';
 import { describe as group, expect, it } from 'vitest';
-import { countBeyond, expandCounts, summarizeCounts, summarizeSorted, type ValueCount } from './frequency';
+import { countBeyond, expandCounts, robustOfSorted, summarizeCounts, summarizeSorted, type ValueCount } from './frequency';
 import { describe, momentsOf } from './summary';
 
 /** A frequency table of an array (sorted, distinct values). */
@@ -81,6 +81,22 @@ group('summarizeCounts equals describe() on the raw readings', () => {
 		expect(JSON.stringify(s)).not.toMatch(/NaN/);
 		expect(s.mean).toBeNull();
 		expect(s.quantiles.p50).toBeNull();
+	});
+});
+
+group('robustOfSorted', () => {
+	it('median, MAD and fences agree with summarizeSorted (Grubbs data, REFERENCES.md B7: median 201.37, MAD 0.995)', () => {
+		// NIST e-Handbook §1.3.5.17 Grubbs example data as listed in REFERENCES.md B6; median, MAD
+		// and type-7 fences 197.051 / 204.981 there are [C] (recomputed).
+		const x = [199.31, 199.53, 200.19, 200.82, 201.92, 201.95, 202.18, 245.57];
+		const r = robustOfSorted(x);
+		const s = summarizeSorted(x);
+		expect(r).toEqual({ n: 8, median: s.quantiles.p50, mad: s.mad, fences: s.fences });
+		expect(r.median).toBeCloseTo(201.37, 10);
+		expect(r.mad).toBeCloseTo(0.995, 10);
+		expect(r.fences.low).toBeCloseTo(197.05125, 10);
+		expect(r.fences.high).toBeCloseTo(204.98125, 10);
+		expect(robustOfSorted([])).toEqual({ n: 0, median: null, mad: null, fences: { low: null, high: null } });
 	});
 });
 

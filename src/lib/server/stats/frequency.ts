@@ -53,6 +53,29 @@ export function countBeyond(counts: readonly ValueCount[], low: number | null, h
 	return { below, above };
 }
 
+export interface RobustSummary {
+	n: number;
+	median: number | null;
+	/** Raw MAD, median |x − median|. */
+	mad: number | null;
+	fences: { low: number | null; high: number | null };
+}
+
+/** Median, MAD and Tukey's fences of an already-sorted series: what a single reading is judged by. */
+export function robustOfSorted(sorted: readonly number[]): RobustSummary {
+	if (sorted.length === 0) return { n: 0, median: null, mad: null, fences: { low: null, high: null } };
+	const q1 = quantileType7(sorted, 0.25) as number;
+	const q3 = quantileType7(sorted, 0.75) as number;
+	const iqr = q3 - q1;
+	return {
+		n: sorted.length,
+		median: quantileType7(sorted, 0.5),
+		// R mad(x, constant = 1): median |x − median| with type-7 medians.
+		mad: medianAbsoluteDeviation(sorted as number[]),
+		fences: { low: q1 - TUKEY_K * iqr, high: q3 + TUKEY_K * iqr }
+	};
+}
+
 /**
  * The summary of describe() from an already-sorted series, with the count, mean and SD taken
  * from `moments` when given (e.g. merged from stored per-month moments) instead of a new pass.

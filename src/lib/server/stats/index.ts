@@ -71,8 +71,10 @@ export { linearFit, type BandPoint, type LinearFit } from './regression';
 export {
 	countBeyond,
 	expandCounts,
+	robustOfSorted,
 	summarizeCounts,
 	summarizeSorted,
 	type FrequencySummary,
+	type RobustSummary,
 	type ValueCount
 } from './frequency';

@@ -72,6 +72,8 @@ export const readings = pgTable(
 		unique('readings_identity_key').on(t.headId, t.stage, t.cylinder, t.side, t.valve, t.measurement, t.measuredAt),
 		index('readings_analytics_idx').on(t.shopId, t.measurement, t.stage, t.side, t.familyId),
 		index('readings_batch_idx').on(t.batchId),
+		// In the database it also INCLUDEs (value, head_id, cylinder, valve), which Drizzle cannot
+		// express: see drizzle/0004_stats_summaries.sql.
 		index('readings_series_idx').on(t.shopId, t.seriesKey, t.familyId, t.measuredAt),
 		check('readings_cylinder_range', sql`${t.cylinder} between 1 and 16`),
 		check('readings_valve_range', sql`${t.valve} between 1 and 3`),
