@@ -1,4 +1,4 @@
-// The per-month summaries the readings triggers keep (drizzle/0003_stats_summaries.sql) must equal
+// The per-month summaries the readings triggers keep (drizzle/0004_stats_summaries.sql) must equal
 // a full recomputation over readings after every kind of write: a bulk import, its undo, plain
 // inserts of one and of many rows, updates that move a reading to another value, month or family
 // series, deletes, and a head's cascaded delete. The recomputation here is the textbook SQL

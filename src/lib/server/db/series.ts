@@ -1,5 +1,5 @@
 // The series key: measurement × stage × side as one small integer, computed exactly as the
-// database's lapmark_series() (drizzle/0003_stats_summaries.sql) computes readings.series_key
+// database's lapmark_series() (drizzle/0004_stats_summaries.sql) computes readings.series_key
 // and the summary tables' key. Queries filter on it because, under row-level security, only
 // leakproof comparisons narrow an index scan, and PostgreSQL does not mark enum equality
 // leakproof (tests/integration/stats-summaries.spec.ts checks every combination against the

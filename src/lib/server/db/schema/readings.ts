@@ -42,7 +42,7 @@ export const readings = pgTable(
 		batchId: uuid(),
 		/**
 		 * measurement × stage × side as one small integer (lapmark_series() in
-		 * drizzle/0003_stats_summaries.sql; seriesKey() in $lib/server/db/series.ts). Row-level
+		 * drizzle/0004_stats_summaries.sql; seriesKey() in $lib/server/db/series.ts). Row-level
 		 * security lets an index use only leakproof comparisons, and enum equality is not marked
 		 * leakproof, so `measurement = …` can never narrow an index scan on this table;
 		 * `series_key = …` can.

@@ -2,7 +2,7 @@ import { sql } from 'drizzle-orm';
 import { check, date, doublePrecision, integer, pgTable, primaryKey, smallint, uuid } from 'drizzle-orm/pg-core';
 
 // Per-group summaries of `readings`, kept current by statement-level triggers on readings
-// (drizzle/0003_stats_summaries.sql), so the statistics routes never rescan every reading.
+// (drizzle/0004_stats_summaries.sql), so the statistics routes never rescan every reading.
 // A group is shop × series (measurement × stage × side) × family × calendar month (UTC) of
 // measured_at. Keys are leakproof types only (uuid, smallint, date, float8), so that under
 // row-level security every key column can narrow an index scan.
