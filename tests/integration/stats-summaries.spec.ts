@@ -232,6 +232,36 @@ describe('summaries stay equal to a full recomputation', () => {
 		}
 	});
 
+	it('stay numerically stable under many Chan merges (NIST StRD NumAcc construction, shifted)', async () => {
+		// NIST StRD NumAcc2/NumAcc3 are built as a first value and 500 pairs (x.1, x.3) around it:
+		// mean x.2 and SD 0.1 exactly (REFERENCES.md B1). Here x = 3599 (fluid hold, within the
+		// plausible range), sent in 11 statements so the stored moments are merged 10 times; GSL's
+		// tolerance for NumAcc3's SD is 1e-9 relative (REFERENCES.md B1).
+		const head = await newHead('2026-07-01');
+		const values = [3599.2, ...Array.from({ length: 500 }, () => [3599.1, 3599.3]).flat()];
+		for (let part = 0; part < 11; part++) {
+			const slice = values.slice(part * 91, (part + 1) * 91);
+			await withShop(db, shopId, (tx) =>
+				tx.insert(readings).values(
+					slice.map((value, i) => ({
+						...spread(head, 1, 5)[0],
+						stage: 'final' as const,
+						measurement: 'fluid_hold' as const,
+						value,
+						measuredAt: new Date(Date.UTC(2026, 6, 2, 0, 0, part * 91 + i))
+					}))
+				)
+			);
+		}
+		await expectConsistent();
+		const sel: Selection = { familyIds: [familyId], keys: [seriesKey('fluid_hold', 'final', 'intake')], from: null, to: null, machinist: null, customer: null, mileageMin: null, mileageMax: null };
+		const { groups } = await withShop(db, shopId, (tx) => groupData(tx, shopId, sel));
+		const m = groups[0].moments;
+		expect(m.n).toBe(1001);
+		expect(Math.abs(m.mean - 3599.2) / 3599.2).toBeLessThan(1e-15);
+		expect(Math.abs(Math.sqrt(m.m2 / (m.n - 1)) - 0.1) / 0.1).toBeLessThan(1e-9);
+	});
+
 	it('after deleting every reading of the shop, nothing is left', async () => {
 		await withShop(db, shopId, (tx) => tx.execute(raw`delete from readings where shop_id = ${shopId}`));
 		const got = await expectConsistent();
