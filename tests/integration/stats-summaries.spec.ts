@@ -43,7 +43,12 @@ async function recomputed() {
 	}));
 }
 
-/** Summaries equal the recomputation: counts, n, min and max exactly; mean and M2 to 1e-12. */
+/**
+ * Summaries equal the recomputation: counts, n, min and max exactly; mean to 1e-12 and M2 to 1e-10
+ * relative. Both sides round differently (PostgreSQL's var_pop is Youngs–Cramer; the triggers use
+ * two-pass sums and Chan merges); the textbook Σx² − n·x̄² would miss by ~1e-7 on the NumAcc-style
+ * data below.
+ */
 async function expectConsistent() {
 	const [got, want] = await Promise.all([summaries(), recomputed()]);
 	expect(got.counts).toEqual(want.counts);
@@ -51,7 +56,7 @@ async function expectConsistent() {
 	got.moments.forEach((g, i) => {
 		const w = want.moments[i];
 		expect(Math.abs((g.mean as number) - (w.mean as number))).toBeLessThanOrEqual(1e-12 * Math.abs(w.mean as number));
-		expect(Math.abs((g.m2 as number) - (w.m2 as number))).toBeLessThanOrEqual(1e-12 * Math.max(1e-12, w.m2 as number) + 1e-18);
+		expect(Math.abs((g.m2 as number) - (w.m2 as number))).toBeLessThanOrEqual(1e-10 * Math.max(1e-12, w.m2 as number) + 1e-18);
 	});
 	return got;
 }
