@@ -140,7 +140,7 @@ export function suggestDecision(input: DecisionInput): Suggestion {
 const SEAT_CUTS: readonly DecisionKind[] = ['recut_seat', 'replace_seat'];
 
 /**
- * The warning a person must acknowledge before recording a seat cut on a guide that is still
+ * The warning a person must acknowledge before saving a seat cut on a guide that is still
  * worn or out of limits: the cutter pilots off the guide, so the new seat will not be concentric
  * with the stem. Null when there is nothing to warn about.
  */
