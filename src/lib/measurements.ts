@@ -34,6 +34,19 @@ export const BORE_HEIGHTS = ['top', 'middle', 'bottom'] as const;
 export type BoreHeight = (typeof BORE_HEIGHTS)[number];
 
 export const ROLES = ['owner', 'engineer', 'machinist', 'viewer'] as const;
+
+/** What can be done with one valve position; the database's decision_kind enum uses this list. */
+export const DECISION_KINDS = [
+	'reuse',
+	'lap',
+	'recut_seat',
+	'reface_valve',
+	'replace_valve',
+	'replace_seat',
+	'replace_guide',
+	'knurl_guide'
+] as const;
+export type DecisionKind = (typeof DECISION_KINDS)[number];
 export type Role = (typeof ROLES)[number];
 
 export type CanonicalUnit = 'mm' | 'um' | 'pct' | 's';

@@ -1,6 +1,6 @@
 // Inputs of the head workflow: the list's query string, intake, decisions, release, comebacks.
 import { z } from 'zod';
-import { DISTANCE_UNITS, PRESSURE_UNITS } from '$lib/measurements';
+import { DECISION_KINDS, DISTANCE_UNITS, PRESSURE_UNITS } from '$lib/measurements';
 import { parsePosKey } from '$lib/inspection';
 
 export const HEAD_STATUSES = ['received', 'inspected', 'in_rework', 'final_check', 'released'] as const;
@@ -19,7 +19,7 @@ export const LEAK_PATH_LABEL: Record<(typeof LEAK_PATHS)[number], string> = {
 	crankcase: 'Crankcase (rings)',
 	coolant: 'Coolant (gasket)'
 };
-export const DECISION_KINDS = ['reuse', 'lap', 'recut_seat', 'reface_valve', 'replace_valve', 'replace_seat', 'replace_guide', 'knurl_guide'] as const;
+export { DECISION_KINDS };
 
 const day = z.string().regex(/^\d{4}-\d{2}-\d{2}$/, 'Use a date like 2026-01-31.').refine((s) => !Number.isNaN(Date.parse(`${s}T00:00:00Z`)), 'That date does not exist.');
 const uuid = (message: string) => z.uuid({ message });

@@ -1,20 +1,11 @@
 // Query strings and bodies of the statistics API (/api/v1/stats/*, /api/v1/check). Shared by
 // client and server: the charts build their URLs from the same names.
 import { z } from 'zod';
-import { MEASUREMENTS, SIDES, STAGES, isUnit, type Measurement, type Unit } from '../measurements';
+import { DECISION_KINDS, MEASUREMENTS, SIDES, STAGES, isUnit, type DecisionKind, type Measurement, type Unit } from '../measurements';
 
-/** Decision kinds, as the database's decision_kind enum (db/schema/enums.ts). */
-export const DECISION_KIND_NAMES = [
-	'reuse',
-	'lap',
-	'recut_seat',
-	'reface_valve',
-	'replace_valve',
-	'replace_seat',
-	'replace_guide',
-	'knurl_guide'
-] as const;
-export type DecisionKindName = (typeof DECISION_KIND_NAMES)[number];
+/** Decision kinds, the same list as the database's decision_kind enum. */
+export const DECISION_KIND_NAMES = DECISION_KINDS;
+export type DecisionKindName = DecisionKind;
 
 /** Most values one POST /api/v1/stats/describe accepts. */
 export const DESCRIBE_MAX_VALUES = 100_000;

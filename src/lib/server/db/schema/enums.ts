@@ -1,5 +1,5 @@
 import { pgEnum } from 'drizzle-orm/pg-core';
-import { BORE_DIRECTIONS, BORE_HEIGHTS, MEASUREMENTS, ROLES, SIDES, STAGES } from '../../../measurements';
+import { BORE_DIRECTIONS, BORE_HEIGHTS, DECISION_KINDS, MEASUREMENTS, ROLES, SIDES, STAGES, type DecisionKind } from '../../../measurements';
 
 export const roleEnum = pgEnum('role', ROLES);
 export const stageEnum = pgEnum('stage', STAGES);
@@ -16,17 +16,7 @@ export const LEAK_PATHS = ['none', 'intake', 'exhaust', 'crankcase', 'coolant'] 
 export type LeakPath = (typeof LEAK_PATHS)[number];
 export const leakPathEnum = pgEnum('leak_path', LEAK_PATHS);
 
-export const DECISION_KINDS = [
-	'reuse',
-	'lap',
-	'recut_seat',
-	'reface_valve',
-	'replace_valve',
-	'replace_seat',
-	'replace_guide',
-	'knurl_guide'
-] as const;
-export type DecisionKind = (typeof DECISION_KINDS)[number];
+export { DECISION_KINDS, type DecisionKind };
 export const decisionKindEnum = pgEnum('decision_kind', DECISION_KINDS);
 
 export const BATCH_STATUSES = ['running', 'committed', 'failed', 'undone'] as const;
