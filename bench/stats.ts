@@ -339,7 +339,7 @@ try {
 	};
 	console.log(JSON.stringify(line));
 } finally {
-	if (server.exitCode === null) server.kill('SIGTERM');
+	if (server.exitCode === null && server.signalCode === null) server.kill('SIGTERM');
 	rmSync(dir, { recursive: true, force: true });
 	await sql.end();
 }

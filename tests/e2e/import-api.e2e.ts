@@ -145,6 +145,9 @@ describe('POST /api/v1/imports', () => {
 			env: { ...process.env, PORT: String(port), HOST: '127.0.0.1', ORIGIN: base, BODY_SIZE_LIMIT: 'Infinity' },
 			stdio: 'ignore'
 		});
+		// Listen for the exit now: a process ended by a signal keeps exitCode null, so checking it
+		// later cannot tell whether the exit already happened.
+		const exited = once(child, 'exit');
 		try {
 			for (let i = 0; i < 100; i++) {
 				if (await fetch(`${base}/api/health`).then((r) => r.ok).catch(() => false)) break;
@@ -162,7 +165,7 @@ describe('POST /api/v1/imports', () => {
 			});
 			const res = await post('/api/v1/imports?fileName=killed.csv', stream, 'machinist', {}, base).catch((e) => e);
 			expect(res).toBeInstanceOf(Error);
-			if (child.exitCode === null) await once(child, 'exit');
+			await exited;
 			// PostgreSQL ends the dead server's session and rolls its transaction back.
 			let readings = -1;
 			for (let i = 0; i < 50; i++) {

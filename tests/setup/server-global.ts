@@ -30,7 +30,7 @@ export default async function setup(project: TestProject) {
 	}
 	project.provide('baseURL', baseURL);
 	return async () => {
-		if (!server || server.exitCode !== null) return;
+		if (!server || server.exitCode !== null || server.signalCode !== null) return;
 		const exited = new Promise((r) => server?.once('exit', r));
 		server.kill('SIGTERM');
 		const timer = setTimeout(() => server?.kill('SIGKILL'), 10_000);
