@@ -7,6 +7,7 @@ const [path = '/', role = 'engineer', out = '/tmp/look.png', theme = 'light'] = 
 const base = process.env.BASE ?? 'http://127.0.0.1:5173';
 const browser = await launch();
 const page = await browser.newPage({ viewport: { width: Number(process.env.WIDTH ?? 1400), height: 900 }, colorScheme: theme === 'dark' ? 'dark' : 'light' });
+page.setDefaultTimeout(120000);
 page.on('console', (m) => m.type() === 'error' && console.log('[console]', m.text()));
 page.on('pageerror', (e) => console.log('[pageerror]', e.message));
 await signInWithPassword(page, base, `${role}@brackenford.example`, `brackenford-${role}-demo`);
