@@ -57,7 +57,9 @@ const EXPECTED: Record<string, Record<string, Expect>> = {
 	'/api/v1/stats/outliers': { GET: 'viewer' },
 	'/api/v1/stats/rates': { GET: 'viewer' },
 	'/api/v1/stats/wear': { GET: 'viewer' },
-	'/api/v1/stats/describe': { POST: 'viewer' }
+	'/api/v1/stats/describe': { POST: 'viewer' },
+	'/(app)/outliers': { GET: 'machinist' },
+	'/(app)/rates': { GET: 'machinist' }
 };
 
 /** A concrete URL for a route id: groups dropped, parameters filled with harmless values. */

@@ -67,7 +67,9 @@ export const POLICY: Record<string, RoutePolicy> = {
 	'/api/v1/stats/outliers': { GET: 'viewer' },
 	'/api/v1/stats/rates': { GET: 'viewer' },
 	'/api/v1/stats/wear': { GET: 'viewer' },
-	'/api/v1/stats/describe': { POST: 'viewer' }
+	'/api/v1/stats/describe': { POST: 'viewer' },
+	'/(app)/outliers': { GET: 'machinist' },
+	'/(app)/rates': { GET: 'machinist' }
 };
 
 /** Which operation a request is: its method, or `action:<name>` for a form action POST. */

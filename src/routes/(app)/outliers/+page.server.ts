@@ -1,0 +1,5 @@
+import { familiesFor } from '$lib/server/filter-families';
+import type { PageServerLoad } from './$types';
+
+// The figures are fetched by the browser from /api/v1/stats/outliers.
+export const load: PageServerLoad = (event) => familiesFor(event, 'machinist');
