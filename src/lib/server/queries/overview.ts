@@ -41,25 +41,7 @@ export async function overviewFigures(conn: Conn, shopId: string, opts: { withIm
 	const [stored] = await conn.execute<{ n: number }>(sql`select coalesce(sum(n), 0)::int as n from reading_summaries where shop_id = ${shopId}`);
 	// A valve position fails as received when any of its as-received readings is outside the
 	// limits in effect on the day it was measured.
-	// Filtering on series_key lets this read the covering index alone (no table rows).
-	const failing = await conn.execute<{ side: 'intake' | 'exhaust'; positions: number; failing: number }>(sql`
-		with lv as (
-			select l.family_id, lapmark_series(l.measurement, l.stage, l.side) as series_key, l.min, l.max, l.effective_from,
-				lead(l.effective_from) over (partition by l.family_id, l.measurement, l.side, l.stage order by l.effective_from) as effective_to
-			from limits l where l.shop_id = ${shopId} and l.stage = 'as_received'
-		),
-		judged as (
-			select r.head_id, r.cylinder, r.series_key & 1 as exhaust, r.valve,
-				bool_or(r.value < coalesce(lv.min, '-Infinity') or r.value > coalesce(lv.max, 'Infinity')) as out
-			from readings r
-			left join lv on lv.family_id = r.family_id and lv.series_key = r.series_key
-				and lv.effective_from <= r.measured_at::date and (lv.effective_to is null or lv.effective_to > r.measured_at::date)
-			where r.shop_id = ${shopId} and r.series_key = any(${`{${AS_RECEIVED_KEYS.join(',')}}`}::smallint[])
-			group by 1, 2, 3, 4
-		)
-		select case exhaust when 1 then 'exhaust' else 'intake' end as side, count(*)::int as positions,
-			count(*) filter (where out)::int as failing
-		from judged group by exhaust order by exhaust`);
+	const failing = await failingPositions(conn, shopId);
 	const due = await instrumentsDueWithin(conn, shopId, 30);
 	const comebacks = await conn.execute<OverviewFigures['latestComebacks'][number]>(sql`
 		select h.id as "headId", h.serial, f.code as family, h.received_on::text as "receivedOn", h.comeback_of as "originalHeadId",
@@ -83,4 +65,48 @@ export async function overviewFigures(conn: Conn, shopId: string, opts: { withIm
 		latestComebacks: [...comebacks],
 		latestImports: imports?.map((b) => ({ id: b.id, fileName: b.fileName, status: b.status, readings: b.readings, rejected: b.rejected, createdAt: new Date(b.createdAt).toISOString() })) ?? null
 	};
+}
+
+type FailingRow = { side: 'intake' | 'exhaust'; positions: number; failing: number };
+
+/**
+ * The last answer per shop, with a fingerprint of everything it depends on: the readings (their
+ * per-month summaries change with every insert, update or delete: count, mean and M2) and the
+ * limits. A fingerprint costs two small aggregates; the answer itself reads every as-received
+ * reading of the shop. Kept at most 10 minutes whatever the fingerprint says.
+ */
+const failingCache = new Map<string, { fingerprint: string; at: number; rows: FailingRow[] }>();
+const FAILING_TTL_MS = 10 * 60_000;
+
+/** Valve positions with any as-received reading outside the limits of its day, per side. */
+export async function failingPositions(conn: Conn, shopId: string): Promise<FailingRow[]> {
+	const [fp] = await conn.execute<{ fingerprint: string }>(sql`
+		select concat_ws(':',
+			(select concat_ws(',', count(*), sum(n), sum(mean * n), sum(m2)) from reading_summaries where shop_id = ${shopId}),
+			(select concat_ws(',', count(*), sum(coalesce(min, 0)), sum(coalesce(max, 0)), max(effective_from)) from limits where shop_id = ${shopId})
+		) as fingerprint`);
+	const hit = failingCache.get(shopId);
+	if (hit && hit.fingerprint === fp.fingerprint && Date.now() - hit.at < FAILING_TTL_MS) return hit.rows;
+	// Filtering on series_key lets this read the covering index alone (no table rows).
+	const rows = await conn.execute<FailingRow>(sql`
+		with lv as (
+			select l.family_id, lapmark_series(l.measurement, l.stage, l.side) as series_key, l.min, l.max, l.effective_from,
+				lead(l.effective_from) over (partition by l.family_id, l.measurement, l.side, l.stage order by l.effective_from) as effective_to
+			from limits l where l.shop_id = ${shopId} and l.stage = 'as_received'
+		),
+		judged as (
+			select r.head_id, r.cylinder, r.series_key & 1 as exhaust, r.valve,
+				bool_or(r.value < coalesce(lv.min, '-Infinity') or r.value > coalesce(lv.max, 'Infinity')) as out
+			from readings r
+			left join lv on lv.family_id = r.family_id and lv.series_key = r.series_key
+				and lv.effective_from <= r.measured_at::date and (lv.effective_to is null or lv.effective_to > r.measured_at::date)
+			where r.shop_id = ${shopId} and r.series_key = any(${`{${AS_RECEIVED_KEYS.join(',')}}`}::smallint[])
+			group by 1, 2, 3, 4
+		)
+		select case exhaust when 1 then 'exhaust' else 'intake' end as side, count(*)::int as positions,
+			count(*) filter (where out)::int as failing
+		from judged group by exhaust order by exhaust`);
+	const out = [...rows];
+	failingCache.set(shopId, { fingerprint: fp.fingerprint, at: Date.now(), rows: out });
+	return out;
 }
