@@ -1,6 +1,6 @@
 import { sql } from 'drizzle-orm';
 import { MEASUREMENTS } from '../../measurements';
-import type { Conn } from '../db/scope';
+import { withShop, withSystem, type Conn } from '../db/scope';
 import { seriesKey } from '../db/series';
 import { instrumentsDueWithin } from './instruments';
 import { listBatches } from './imports';
@@ -109,4 +109,17 @@ export async function failingPositions(conn: Conn, shopId: string): Promise<Fail
 	const out = [...rows];
 	failingCache.set(shopId, { fingerprint: fp.fingerprint, at: Date.now(), rows: out });
 	return out;
+}
+
+/**
+ * Works out every shop's failing positions once, in the background, when the server starts, so
+ * the first overview after a start does not wait for it. Errors are logged, never thrown.
+ */
+export async function warmOverviews(db: Parameters<typeof withShop>[0]): Promise<void> {
+	try {
+		const shopIds = await withSystem(db, (tx) => tx.execute<{ id: string }>(sql`select id from shops`));
+		for (const { id } of shopIds) await withShop(db, id, (tx) => failingPositions(tx, id));
+	} catch (e) {
+		console.error('[overview] warming the figures failed', e);
+	}
 }
