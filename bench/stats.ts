@@ -9,7 +9,8 @@
 //   2. check the summaries against a full recomputation, and the hand-written summary SQL of
 //      step 4 against the raw SQL;
 //   3. start `node build` on BENCH_PORT (default 3310) and time each route over HTTP with the
-//      demo owner's API token, median of BENCH_RUNS (default 20) after 3 warm-up requests;
+//      demo owner's API token, median of BENCH_RUNS (default 20) after 3 warm-up requests,
+//      in BENCH_BLOCKS (default 4) blocks alternating with those of step 4;
 //   4. through psql, as the app's role with the shop set (row-level security on, as in the
 //      app), median of the same number of runs: the bare SQL of the same aggregate over the
 //      readings (sqlMs; "ratio" = route / sqlMs, the issue's measure) and the same figures read
@@ -318,9 +319,9 @@ const routes = {
 type Route = keyof typeof routes;
 
 const dir = mkdtempSync(join(tmpdir(), 'lapmark-bench-'));
-/** Median time of a statement through psql (client-side \timing, output discarded), as the app's
- * role with the bench shop set (or, for `scope: 'system'`, across shops). */
-function psqlMedian(query: string, opts: { runs?: number; scope?: 'shop' | 'system' } = {}): number {
+/** Times of a statement through psql (client-side \timing, output discarded) after up to 3 untimed
+ * runs, as the app's role with the bench shop set (or, for `scope: 'system'`, across shops). */
+function psqlTimes(query: string, opts: { runs?: number; scope?: 'shop' | 'system' } = {}): number[] {
 	const n = opts.runs ?? runs;
 	const file = join(dir, 'q.sql');
 	const scope = opts.scope === 'system' ? `set lapmark.system = 'on';` : `set lapmark.shop_id = '${ids.shop}';`;
@@ -330,8 +331,9 @@ function psqlMedian(query: string, opts: { runs?: number; scope?: 'shop' | 'syst
 	if (out.status !== 0) throw new Error(`psql failed: ${out.stderr}`);
 	const times = [...out.stdout.matchAll(/Time: ([\d.]+) ms/g)].map((m) => Number(m[1]));
 	if (times.length !== n) throw new Error(`psql printed ${times.length} timings, expected ${n}`);
-	return median(times);
+	return times;
 }
+const psqlMedian = (query: string, opts: { runs?: number; scope?: 'shop' | 'system' } = {}) => median(psqlTimes(query, opts));
 
 const server = spawn('node', ['build'], {
 	env: {
@@ -355,7 +357,7 @@ try {
 		await new Promise((r) => setTimeout(r, 200));
 	}
 
-	const httpMedian = async (path: string) => {
+	const httpTimes = async (path: string, n = runs) => {
 		const once = async () => {
 			const t0 = performance.now();
 			const res = await fetch(base + path, { headers: { authorization: `Bearer ${owner.token}`, accept: 'application/json' } });
@@ -367,9 +369,10 @@ try {
 		// Warm-up; the first may meet a keep-alive socket the server has just closed while psql ran.
 		for (let i = 0; i < 3; i++) await once().catch(() => once());
 		const times: number[] = [];
-		for (let i = 0; i < runs; i++) times.push(await once());
-		return median(times);
+		for (let i = 0; i < n; i++) times.push(await once());
+		return times;
 	};
+	const httpMedian = async (path: string) => median(await httpTimes(path));
 
 	// The floor every API request pays: token lookup, a transaction, JSON.
 	const floorMs = r1(await httpMedian('/api/v1/me'));
@@ -395,10 +398,21 @@ try {
 	type Result = { ms: number; sqlMs: number; ratio: number; summarySqlMs: number | null; summaryRatio: number | null; sqlEnumMs: number; serviceMs: number };
 	const results = {} as Record<Route, Result>;
 	const ratio = (a: number, b: number) => Math.round((a / b) * 100) / 100;
+	// The route and its SQL baselines are timed in alternating blocks (BENCH_BLOCKS, default 4, of
+	// runs / blocks each), so that a burst of load from elsewhere on the machine falls on both
+	// sides of a ratio rather than on one; the medians are over all the runs.
+	const blocks = Math.max(1, Math.min(runs, Number(process.env.BENCH_BLOCKS ?? 4)));
 	for (const name of Object.keys(routes) as Route[]) {
-		const ms = await httpMedian(routes[name]);
-		const sqlMs = psqlMedian(bare[name](byKey[name]));
-		const summarySqlMs = name === 'rates' ? null : psqlMedian(summaryBare[name]);
+		const t = { http: [] as number[], sql: [] as number[], summary: [] as number[] };
+		for (let b = 0; b < blocks; b++) {
+			const n = Math.floor(runs / blocks) + (b < runs % blocks ? 1 : 0);
+			t.http.push(...(await httpTimes(routes[name], n)));
+			t.sql.push(...psqlTimes(bare[name](byKey[name]), { runs: n }));
+			if (name !== 'rates') t.summary.push(...psqlTimes(summaryBare[name], { runs: n }));
+		}
+		const ms = median(t.http);
+		const sqlMs = median(t.sql);
+		const summarySqlMs = t.summary.length ? median(t.summary) : null;
 		const sqlEnumMs = psqlMedian(bare[name](byEnum[name]));
 		const serviceMs = await inProcess(services[name]);
 		results[name] = {
@@ -415,7 +429,7 @@ try {
 	const wholeTableMs = process.env.BENCH_WHOLE === '0' ? null : r1(psqlMedian(wholeTable, { runs: 3, scope: 'system' }));
 
 	const cell = (x: number | null, w: number, digits?: number) => (x === null ? '–' : digits === undefined ? String(x) : x.toFixed(digits)).padStart(w);
-	console.log(`\nStatistics routes at ${readings.toLocaleString('en-US')} readings (median of ${runs}; HTTP with an API token vs psql, both with row-level security)`);
+	console.log(`\nStatistics routes at ${readings.toLocaleString('en-US')} readings (median of ${runs}, in ${blocks} alternating blocks; HTTP with an API token vs psql, both with row-level security)`);
 	console.log('route          HTTP ms   raw SQL ms   ratio   summary SQL ms   summary ratio   in-process ms   raw SQL on enum columns ms');
 	for (const [name, r] of Object.entries(results)) {
 		console.log(
