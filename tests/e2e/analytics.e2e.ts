@@ -198,23 +198,28 @@ async function signInWithPasswordNoJs(page: Page) {
 }
 
 describe('look and accessibility', () => {
-	it('has no serious or critical axe-core violation on any page, light or dark', async () => {
-		for (const dark of [false, true]) {
-			const { context, page } = await signedIn('owner', { dark });
-			try {
-				const paths = [...ANALYSIS_PAGES, '/check?family=ALDER-4&side=exhaust&stage=as_received&measurement=clearance&value=0.2&unit=mm', '/heads', '/imports', '/families', '/instruments', '/audit', '/settings/tokens', '/settings/members'];
-				const found: string[] = [];
-				for (const path of paths) {
+	// One context per theme, one test per page (each with its own time limit).
+	const A11Y_PAGES = [...ANALYSIS_PAGES, '/check?family=ALDER-4&side=exhaust&stage=as_received&measurement=clearance&value=0.2&unit=mm', '/heads', '/imports', '/families', '/instruments', '/audit', '/settings/tokens', '/settings/members'];
+	for (const dark of [false, true]) {
+		describe(dark ? 'dark theme' : 'light theme', () => {
+			let context: BrowserContext;
+			let page: Page;
+			beforeAll(async () => {
+				({ context, page } = await signedIn('owner', { dark }));
+			});
+			afterAll(async () => {
+				await context?.close();
+			});
+			for (const path of A11Y_PAGES) {
+				it(`has no serious or critical axe-core violation on ${path}`, async () => {
 					await open(page, path);
-					for (const v of await axeSerious(page)) found.push(`${dark ? 'dark' : 'light'} ${path}: ${v.impact} ${v.id} (${v.help}) at ${v.nodes.map((n) => n.target.join(' ')).join(', ')}`);
-				}
-				expect(found).toEqual([]);
-				if (dark) await shot(page, 'analysis-dark-members');
-			} finally {
-				await context.close();
+					const found = (await axeSerious(page)).map((v) => `${v.impact} ${v.id} (${v.help}) at ${v.nodes.map((n) => n.target.join(' ')).join(', ')}`);
+					expect(found).toEqual([]);
+					if (dark && path === '/settings/members') await shot(page, 'analysis-dark-members');
+				});
 			}
-		}
-	});
+		});
+	}
 
 	it('keeps the charts and their tables on paper', async () => {
 		const { context, page } = await signedIn('engineer');
