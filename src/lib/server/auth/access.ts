@@ -65,7 +65,8 @@ export const POLICY: Record<string, RoutePolicy> = {
 	'/api/v1/stats/wear': { GET: 'viewer' },
 	'/api/v1/stats/describe': { POST: 'viewer' },
 	'/(app)/outliers': { GET: 'machinist' },
-	'/(app)/rates': { GET: 'machinist' }
+	'/(app)/rates': { GET: 'machinist' },
+	'/api/v1/readings': { GET: 'engineer' }
 };
 
 /** Which operation a request is: its method, or `action:<name>` for a form action POST. */
