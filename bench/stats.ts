@@ -19,13 +19,12 @@ import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { loadavg, tmpdir } from 'node:os';
 import { join } from 'node:path';
 import postgres from 'postgres';
-import { runMigrations } from '../scripts/migrate';
 import { seriesKey } from '../src/lib/server/db/series';
-import { demoSignIns, generateDemo } from '../src/lib/server/demo/generate';
-import { seedDemo } from '../src/lib/server/demo/seed';
+import { demoSignIns } from '../src/lib/server/demo/generate';
 import { createDb } from '../src/lib/server/db/client';
 import { withShop } from '../src/lib/server/db/scope';
 import { checkReading, compare, distribution, rates } from '../src/lib/server/services/stats';
+import { seedReadings } from './seed';
 
 const url = process.env.BENCH_DATABASE_URL;
 const psqlBin = process.env.BENCH_PSQL ?? 'psql';
@@ -48,33 +47,7 @@ const r1 = (x: number) => Math.round(x * 10) / 10;
 // ---------------------------------------------------------------------------------------------
 // 1. Data
 
-await runMigrations(url);
-// Readings per original job, from a small run of the same generator; then scale to the target.
-const probe = generateDemo({ endDate, headsTotal: 400 });
-let headsTotal = Math.ceil(target / (probe.counts.readings / 400));
-let data = generateDemo({ endDate, headsTotal });
-while (data.counts.readings < target) {
-	headsTotal += Math.ceil((target - data.counts.readings) / (probe.counts.readings / 400)) + 1;
-	data = generateDemo({ endDate, headsTotal });
-}
-const sql = postgres(url, { max: 2, onnotice: () => {} });
-let readingsInsertMs = 0;
-const seedStart = performance.now();
-const seeded = await seedDemo(sql, {
-	endDate,
-	headsTotal,
-	data,
-	analyze: true,
-	log: (m) => {
-		const hit = /^\s+readings: \d+ rows \(copy \d+ ms, insert (\d+) ms\)/.exec(m);
-		if (hit) readingsInsertMs += Number(hit[1]);
-	}
-});
-const seedMs = performance.now() - seedStart;
-log(`seeded ${seeded.counts.readings} readings on ${seeded.counts.heads} heads in ${(seedMs / 1000).toFixed(1)} s (INSERT … SELECT into readings, triggers included: ${(readingsInsertMs / 1000).toFixed(1)} s)`);
-
-// Steady state, as autovacuum leaves it: statistics and visibility maps for every table.
-await sql.unsafe('vacuum analyze readings, reading_summaries, reading_value_counts, heads, decisions, limits, families');
+const { sql, seeded, seedMs, readingsInsertMs } = await seedReadings(url, target, endDate, log);
 
 const system = <T>(work: (t: postgres.TransactionSql) => Promise<T>) =>
 	sql.begin(async (t) => {
