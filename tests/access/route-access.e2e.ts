@@ -56,7 +56,8 @@ const EXPECTED: Record<string, Record<string, Expect>> = {
 	'/api/v1/stats/describe': { POST: 'viewer' },
 	'/(app)/outliers': { GET: 'machinist' },
 	'/(app)/rates': { GET: 'machinist' },
-	'/api/v1/readings': { GET: 'engineer' }
+	'/api/v1/readings': { GET: 'engineer' },
+	'/(app)/explore': { GET: 'engineer' }
 };
 
 /** A concrete URL for a route id: groups dropped, parameters filled with harmless values. */

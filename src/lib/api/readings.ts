@@ -35,3 +35,10 @@ export interface ReadingsPage {
 	pages: number;
 	items: ReadingItem[];
 }
+
+/** Readings per measurement and stage, in the order of the measurement list. */
+export interface ReadingCount {
+	measurement: Measurement;
+	stage: Stage;
+	n: number;
+}

@@ -66,7 +66,8 @@ export const POLICY: Record<string, RoutePolicy> = {
 	'/api/v1/stats/describe': { POST: 'viewer' },
 	'/(app)/outliers': { GET: 'machinist' },
 	'/(app)/rates': { GET: 'machinist' },
-	'/api/v1/readings': { GET: 'engineer' }
+	'/api/v1/readings': { GET: 'engineer' },
+	'/(app)/explore': { GET: 'engineer' }
 };
 
 /** Which operation a request is: its method, or `action:<name>` for a form action POST. */

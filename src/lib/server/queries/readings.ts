@@ -81,3 +81,9 @@ export function exportQuery(shopId: string, sel: Selection): { text: string; par
 	const q = new PgDialect().sqlToQuery(sql`select ${COLUMNS} ${FROM} where ${readingsWhere(shopId, sel)} order by r.measured_at, r.id`);
 	return { text: q.sql, params: q.params };
 }
+
+/** How many readings the selection holds per series (measurement × stage × side). */
+export async function readingCounts(conn: Conn, shopId: string, sel: Selection): Promise<{ key: number; n: number }[]> {
+	return conn.execute<{ key: number; n: number }>(sql`
+		select r.series_key as key, count(*)::int as n from readings r where ${readingsWhere(shopId, sel)} group by 1 order by 1`);
+}

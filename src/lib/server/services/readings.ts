@@ -1,9 +1,10 @@
 // GET /api/v1/readings: the query resolved against the shop (family code → id, measurement,
 // stage and side → series keys), one page for a table, and the export's file name.
-import type { ReadingsPage } from '../../api/readings';
+import type { ReadingCount, ReadingsPage } from '../../api/readings';
 import type { ReadingsQuery, ReadingSort } from '../../schemas/readings';
 import type { Conn } from '../db/scope';
-import { readingKeys, readingsPage } from '../queries/readings';
+import { readingCounts, readingKeys, readingsPage } from '../queries/readings';
+import { seriesOf } from '../db/series';
 import type { Selection } from '../queries/stats';
 import { resolveFamily, selection } from './stats';
 
@@ -28,4 +29,17 @@ export async function readingsPageOf(conn: Conn, shopId: string, q: ReadingsQuer
 export function exportFileName(q: ReadingsQuery, format: 'csv' | 'json', today = new Date()): string {
 	const parts = ['lapmark-readings', q.family, q.measurement, today.toISOString().slice(0, 10)].filter(Boolean);
 	return `${parts.join('-').replace(/[^\w.-]+/g, '_')}.${format}`;
+}
+
+/** Readings of the selection per measurement and stage (both sides together). */
+export async function countsOf(conn: Conn, shopId: string, sel: Selection): Promise<ReadingCount[]> {
+	const out = new Map<string, ReadingCount>();
+	for (const { key, n } of await readingCounts(conn, shopId, sel)) {
+		const { measurement, stage } = seriesOf(key);
+		const id = `${measurement}|${stage}`;
+		const c = out.get(id) ?? { measurement, stage, n: 0 };
+		c.n += n;
+		out.set(id, c);
+	}
+	return [...out.values()];
 }
