@@ -67,7 +67,9 @@ export const POLICY: Record<string, RoutePolicy> = {
 	'/(app)/outliers': { GET: 'machinist' },
 	'/(app)/rates': { GET: 'machinist' },
 	'/api/v1/readings': { GET: 'engineer' },
-	'/(app)/explore': { GET: 'engineer' }
+	'/(app)/explore': { GET: 'engineer' },
+	'/api/v1/openapi.json': { GET: 'public' },
+	'/(app)/api-guide': { GET: 'engineer' }
 };
 
 /** Which operation a request is: its method, or `action:<name>` for a form action POST. */
