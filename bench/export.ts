@@ -25,6 +25,8 @@ const target = Number(process.env.BENCH_READINGS ?? 1_000_000);
 const port = Number(process.env.BENCH_PORT ?? 3311);
 const log = (m: string) => console.error(`[bench] ${m}`);
 const mb = (bytes: number) => Math.round(bytes / 1024 / 1024);
+// e.g. --max-old-space-size=64: an export that held its rows would fail under such a heap.
+const serverNodeOptions = process.env.BENCH_SERVER_NODE_OPTIONS ?? '';
 
 const { sql, seeded } = await seedReadings(url, target, '2026-06-30', log, 1);
 const engineer = demoSignIns({ shops: 1 }).find((s) => s.shop === 'brackenford' && s.role === 'engineer')!;
@@ -42,7 +44,7 @@ function peakRssMb(pid: number): { peak: number; now: number } {
 
 async function startServer() {
 	const server = spawn('node', ['build'], {
-		env: { ...process.env, DATABASE_URL: url, PORT: String(port), HOST: '127.0.0.1', ORIGIN: `http://127.0.0.1:${port}`, AUTH_SECRET: randomBytes(32).toString('hex') },
+		env: { ...process.env, NODE_OPTIONS: serverNodeOptions, DATABASE_URL: url, PORT: String(port), HOST: '127.0.0.1', ORIGIN: `http://127.0.0.1:${port}`, AUTH_SECRET: randomBytes(32).toString('hex') },
 		stdio: ['ignore', 'ignore', 'inherit']
 	});
 	const deadline = Date.now() + 30_000;
@@ -107,8 +109,8 @@ try {
 			`${name.padEnd(8)} ${f.rows.toLocaleString('en-US').padEnd(12)} ${String(f.seconds).padStart(7)}   ${f.rowsPerSecond.toLocaleString('en-US').padStart(8)}   ${String(f.megabytes).padStart(4)}   ${String(f.firstByteMs).padStart(13)}   ${f.peakRssMb} (${f.idleRssMb})`
 		);
 	}
-	console.log('The server holds one cursor batch (2,000 rows) at a time; the peak RSS stays flat whatever the export size.');
-	console.log(JSON.stringify({ readings: seeded.counts.readings, exported: inShop, csv, json, loadAverage: loadavg()[0] }));
+	console.log(`The server reads the cursor 2,000 rows at a time${serverNodeOptions ? ` (server run with ${serverNodeOptions})` : ''}.`);
+	console.log(JSON.stringify({ readings: seeded.counts.readings, exported: inShop, csv, json, serverNodeOptions, loadAverage: loadavg()[0] }));
 } finally {
 	await sql.end();
 }
