@@ -14,7 +14,9 @@ import { randomBytes } from 'node:crypto';
 import { readFileSync } from 'node:fs';
 import { loadavg } from 'node:os';
 import { demoSignIns } from '../src/lib/server/demo/generate';
-import { seedReadings } from './seed';
+import postgres from 'postgres';
+import { runMigrations } from '../scripts/migrate';
+import { seedScaled } from './seed';
 
 const url = process.env.BENCH_DATABASE_URL;
 if (!url) {
@@ -28,7 +30,10 @@ const mb = (bytes: number) => Math.round(bytes / 1024 / 1024);
 // e.g. --max-old-space-size=64: an export that held its rows would fail under such a heap.
 const serverNodeOptions = process.env.BENCH_SERVER_NODE_OPTIONS ?? '';
 
-const { sql, seeded } = await seedReadings(url, target, '2026-06-30', log, 1);
+await runMigrations(url);
+const sql = postgres(url, { max: 2, onnotice: () => {} });
+const { seeded } = await seedScaled(sql, target, '2026-06-30', log, 1);
+await sql.unsafe('vacuum analyze readings, heads, families, instruments');
 const engineer = demoSignIns({ shops: 1 }).find((s) => s.shop === 'brackenford' && s.role === 'engineer')!;
 const [{ n: inShop }] = await sql.begin(async (t) => {
 	await t`select set_config('lapmark.system', 'on', true)`;

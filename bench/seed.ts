@@ -1,14 +1,11 @@
-// The benches' data: the demo generator scaled to `target` readings (default 1,000,000) and
-// seeded through seedDemo (COPY into staging, one INSERT … SELECT per shop: the triggers run),
-// then vacuumed and analysed as autovacuum would leave it.
-import postgres from 'postgres';
-import { runMigrations } from '../scripts/migrate';
+// The benches' data: the demo generator scaled to `target` readings and seeded through seedDemo
+// (COPY into staging, one INSERT … SELECT per shop: the triggers run).
+import type postgres from 'postgres';
 import { generateDemo } from '../src/lib/server/demo/generate';
 import { seedDemo } from '../src/lib/server/demo/seed';
 
 /** `shops`: 1 puts every reading in the first demo shop (brackenford); 2 splits them as the demo does. */
-export async function seedReadings(url: string, target: number, endDate: string, log: (m: string) => void, shops = 2) {
-	await runMigrations(url);
+export async function seedScaled(sql: postgres.Sql, target: number, endDate: string, log: (m: string) => void, shops = 2) {
 	// Readings per original job, from a small run of the same generator; then scale to the target.
 	const probe = generateDemo({ endDate, shops, headsTotal: 400 });
 	let headsTotal = Math.ceil(target / (probe.counts.readings / 400));
@@ -17,7 +14,6 @@ export async function seedReadings(url: string, target: number, endDate: string,
 		headsTotal += Math.ceil((target - data.counts.readings) / (probe.counts.readings / 400)) + 1;
 		data = generateDemo({ endDate, shops, headsTotal });
 	}
-	const sql = postgres(url, { max: 2, onnotice: () => {} });
 	let readingsInsertMs = 0;
 	const seedStart = performance.now();
 	const seeded = await seedDemo(sql, {
@@ -32,7 +28,5 @@ export async function seedReadings(url: string, target: number, endDate: string,
 	});
 	const seedMs = performance.now() - seedStart;
 	log(`seeded ${seeded.counts.readings} readings on ${seeded.counts.heads} heads in ${(seedMs / 1000).toFixed(1)} s (INSERT … SELECT into readings, triggers included: ${(readingsInsertMs / 1000).toFixed(1)} s)`);
-	// Steady state, as autovacuum leaves it: statistics and visibility maps for every table.
-	await sql.unsafe('vacuum analyze readings, reading_summaries, reading_value_counts, heads, decisions, limits, families');
-	return { sql, seeded, seedMs, readingsInsertMs };
+	return { seeded, seedMs, readingsInsertMs };
 }

@@ -5,11 +5,17 @@
 // and a build of the app. Steps:
 //   1. migrate; seed the demo generator scaled to BENCH_READINGS readings (default 1,000,000)
 //      through seedDemo (COPY into staging, one INSERT … SELECT per shop: the triggers run);
-//   2. check the summaries against a full recomputation;
+//      with BENCH_REUSE=1, keep the readings a KEEP_BENCH_DB=1 run left instead;
+//   2. check the summaries against a full recomputation, and the hand-written summary SQL of
+//      step 4 against the raw SQL;
 //   3. start `node build` on BENCH_PORT (default 3310) and time each route over HTTP with the
-//      demo owner's API token, median of BENCH_RUNS (default 20) after 3 warm-up requests;
-//   4. time the bare SQL of the same aggregate through psql, as the app's role with the shop
-//      set (row-level security on, as in the app), median of the same number of runs;
+//      demo owner's API token, median of BENCH_RUNS (default 20) after 3 warm-up requests,
+//      in BENCH_BLOCKS (default 4) blocks alternating with those of step 4;
+//   4. through psql, as the app's role with the shop set (row-level security on, as in the
+//      app), median of the same number of runs: the bare SQL of the same aggregate over the
+//      readings (sqlMs; "ratio" = route / sqlMs, the issue's measure) and the same figures read
+//      by hand from the summaries (summarySqlMs, summaryRatio; not for rates, which keep none);
+//      for scale, the raw aggregate over every reading once (median of 3; BENCH_WHOLE=0 skips);
 //   5. time what the readings triggers cost: all readings deleted and inserted again, with the
 //      triggers and without, inside a transaction that is rolled back (BENCH_TRIGGER=0 skips).
 // Prints a table, then one line of JSON.
@@ -19,12 +25,13 @@ import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { loadavg, tmpdir } from 'node:os';
 import { join } from 'node:path';
 import postgres from 'postgres';
+import { runMigrations } from '../scripts/migrate';
 import { seriesKey } from '../src/lib/server/db/series';
 import { demoSignIns } from '../src/lib/server/demo/generate';
 import { createDb } from '../src/lib/server/db/client';
 import { withShop } from '../src/lib/server/db/scope';
 import { checkReading, compare, distribution, rates } from '../src/lib/server/services/stats';
-import { seedReadings } from './seed';
+import { seedScaled } from './seed';
 
 const url = process.env.BENCH_DATABASE_URL;
 const psqlBin = process.env.BENCH_PSQL ?? 'psql';
@@ -47,7 +54,29 @@ const r1 = (x: number) => Math.round(x * 10) / 10;
 // ---------------------------------------------------------------------------------------------
 // 1. Data
 
-const { sql, seeded, seedMs, readingsInsertMs } = await seedReadings(url, target, endDate, log);
+await runMigrations(url);
+const sql = postgres(url, { max: 2, onnotice: () => {} });
+// BENCH_REUSE=1 (scripts/bench.sh keeps the database): the readings a KEEP_BENCH_DB=1 run seeded.
+const [present] = process.env.BENCH_REUSE
+	? await sql.begin(async (t) => {
+			await t`select set_config('lapmark.system', 'on', true)`;
+			return t<{ n: number }[]>`select count(*)::int as n from readings`;
+		})
+	: [{ n: 0 }];
+let readings = present.n;
+let readingsInsertMs = 0;
+let seedMs = 0;
+if (readings > 0) {
+	log(`reusing ${readings} readings already in the database (BENCH_REUSE)`);
+} else {
+	const out = await seedScaled(sql, target, endDate, log);
+	seedMs = out.seedMs;
+	readingsInsertMs = out.readingsInsertMs;
+	readings = out.seeded.counts.readings;
+}
+
+// Steady state, as autovacuum leaves it: statistics and visibility maps for every table.
+await sql.unsafe('vacuum analyze readings, reading_summaries, reading_value_counts, heads, decisions, limits, families');
 
 const system = <T>(work: (t: postgres.TransactionSql) => Promise<T>) =>
 	sql.begin(async (t) => {
@@ -151,6 +180,71 @@ const bare = {
 		from s`
 };
 
+/**
+ * The same figures read from the per-month summaries, by hand in one statement: the moments from
+ * reading_summaries merged with Chan et al.'s formula; type-7 quantiles and the MAD from
+ * reading_value_counts as cumulative counts (readings are quantised, so the table is exact: the
+ * k-th smallest reading is the value whose cumulative count first exceeds k); Tukey and limit
+ * counts and the histogram from the counts. This is what the routes read, without HTTP, the
+ * token, the transaction or the app's own work. Rates keep no summaries.
+ */
+const fromSummaries = (familyId: string | null) => {
+	const where = `shop_id = ${lit(ids.shop)} and series_key = ${keyAR('exhaust')}${familyId ? ` and family_id = ${lit(familyId)}` : ''}`;
+	/** The (0-based) k-th smallest of cumulative table `t` (family_id, x, n, upto), joined as `as`. */
+	const kth = (t: string, as: string, fam: string, k: string) => `join ${t} ${as} on ${as}.family_id = ${fam} and ${as}.upto - ${as}.n <= ${k} and ${k} < ${as}.upto`;
+	/** Type-7 interpolation between the floor(h)-th and ceil(h)-th smallest. */
+	const type7 = (h: string) => `lo.x + (${h} - floor(${h})) * (hi.x - lo.x)`;
+	return `
+		m as (select family_id, n, mean, m2, min, max from reading_summaries where ${where}),
+		mo as (select family_id, sum(n) as n, sum(n * mean) / sum(n) as mean, min(min) as mn, max(max) as mx from m group by 1),
+		mm as (select mo.*, sqrt((select sum(m.m2 + m.n * (m.mean - mo.mean) ^ 2) from m where m.family_id = mo.family_id) / nullif(mo.n - 1, 0)) as sd from mo),
+		c as (select family_id, value, sum(n) as n from reading_value_counts where ${where} group by 1, 2),
+		cum as (select family_id, value as x, n, sum(n) over (partition by family_id order by value) as upto from c),
+		ps as (select mm.family_id, p, (mm.n - 1) * p as h from mm, unnest(array[0.05, 0.25, 0.5, 0.75, 0.95]) p),
+		qs as (select ps.family_id, array_agg(${type7('ps.h')} order by ps.p) as q from ps
+			${kth('cum', 'lo', 'ps.family_id', 'floor(ps.h)')} ${kth('cum', 'hi', 'ps.family_id', 'ceil(ps.h)')} group by 1),
+		s as (select mm.*, qs.q, qs.q[2] - 1.5 * (qs.q[4] - qs.q[2]) as lo, qs.q[4] + 1.5 * (qs.q[4] - qs.q[2]) as hi from mm join qs using (family_id)),
+		dev as (select c.family_id, abs(c.value - s.q[3]) as d, sum(c.n) as n from c join s using (family_id) group by 1, 2),
+		dcum as (select family_id, d as x, n, sum(n) over (partition by family_id order by d) as upto from dev),
+		mads as (select s.family_id, ${type7('(s.n - 1) * 0.5')} as mad from s
+			${kth('dcum', 'lo', 's.family_id', 'floor((s.n - 1) * 0.5)')} ${kth('dcum', 'hi', 's.family_id', 'ceil((s.n - 1) * 0.5)')}),
+		tk as (select c.family_id, sum(c.n) filter (where c.value < s.lo or c.value > s.hi) as tukey from c join s using (family_id) group by 1)`;
+};
+const limitOf = (familyId: string | null) => `
+		lim as (select distinct on (family_id) family_id, min, max from limits where shop_id = ${lit(ids.shop)}${familyId ? ` and family_id = ${lit(familyId)}` : ''}
+			and measurement = 'clearance' and stage = 'as_received' and side = 'exhaust' and effective_from <= current_date
+			order by family_id, effective_from desc)`;
+const summaryBare: Record<'distribution' | 'compare' | 'check', string> = {
+	distribution: `
+		with ${fromSummaries(ids.family)}, ${limitOf(ids.family)},
+		f as (select s.*, least(60, greatest(5, ceil((mx - mn) / nullif(2 * (q[4] - q[2]) / cbrt(n), 0))))::int as k from s),
+		hist as (select width_bucket(c.value, f.mn, f.mx * (1 + 1e-12), coalesce(f.k, 60)) as b, sum(c.n) as n from c, f group by 1)
+		select f.n, f.mean, f.sd, f.mn, f.mx, f.q, f.lo, f.hi, f.k, mads.mad, tk.tukey,
+			(select coalesce(sum(c.n), 0) from c, lim where c.value < coalesce(lim.min, '-Infinity') or c.value > coalesce(lim.max, 'Infinity')) as outside,
+			(select json_agg(hist order by b) from hist) as histogram
+		from f join mads using (family_id) join tk using (family_id)`,
+	compare: `
+		with ${fromSummaries(null)}, ${limitOf(null)},
+		o as (select c.family_id, sum(c.n) as outside from c join lim using (family_id)
+			where c.value < coalesce(lim.min, '-Infinity') or c.value > coalesce(lim.max, 'Infinity') group by 1)
+		select s.family_id, s.n, s.mean, s.sd, s.mn, s.mx, s.q, mads.mad, tk.tukey, coalesce(o.outside, 0) as outside
+		from s join mads using (family_id) join tk using (family_id) left join o using (family_id) order by s.q[3]`,
+	check: `
+		with ${fromSummaries(ids.family)}, ${limitOf(ids.family)}
+		select s.n, (select sum(n) from c where value < 0.13) as below, (select sum(n) from c where value = 0.13) as equal,
+			s.q[2:4] as q, mads.mad, (select max from lim) as max
+		from s join mads using (family_id)`
+};
+
+/** For scale: the same kind of aggregate over every reading of every shop, per shop × family × series. */
+const wholeTable = `
+		with s as (select shop_id, family_id, series_key, count(*) as n, avg(value) as mean, stddev_samp(value) as sd, min(value) as mn, max(value) as mx,
+			percentile_cont(array[0.05, 0.25, 0.5, 0.75, 0.95]) within group (order by value) as q from readings group by 1, 2, 3)
+		select s.*, percentile_cont(0.5) within group (order by abs(r.value - s.q[3])) as mad,
+			count(*) filter (where r.value < s.q[2] - 1.5 * (s.q[4] - s.q[2]) or r.value > s.q[4] + 1.5 * (s.q[4] - s.q[2])) as tukey
+		from readings r join s using (shop_id, family_id, series_key)
+		group by s.shop_id, s.family_id, s.series_key, s.n, s.mean, s.sd, s.mn, s.mx, s.q`;
+
 const byKey = {
 	distribution: `series_key = ${keyAR('exhaust')}`,
 	compare: `series_key = ${keyAR('exhaust')}`,
@@ -164,6 +258,40 @@ const byEnum = {
 	check: enumSeries('exhaust')
 };
 
+// The summary SQL must give the raw SQL's figures (a check of the hand-written SQL above, and
+// once more of the summaries themselves); and how many readings each selection holds.
+const asShop = (q: string) =>
+	sql.begin(async (t) => {
+		await t`select set_config('lapmark.shop_id', ${ids.shop}, true)`;
+		return t.unsafe(q);
+	}) as Promise<Record<string, unknown>[]>;
+/** Differences between two result sets, numbers compared to 1e-9 relative (strings that hold numbers too). */
+function differences(a: unknown, b: unknown, path = ''): string[] {
+	const num = (x: unknown) => (typeof x === 'number' ? x : typeof x === 'string' && x.trim() !== '' && !Number.isNaN(Number(x)) ? Number(x) : null);
+	const [x, y] = [num(a), num(b)];
+	if (x !== null && y !== null) return Math.abs(x - y) <= 1e-9 * Math.max(1, Math.abs(x), Math.abs(y)) ? [] : [`${path}: ${a} vs ${b}`];
+	if (Array.isArray(a) && Array.isArray(b)) {
+		if (a.length !== b.length) return [`${path}: ${a.length} vs ${b.length} items`];
+		return a.flatMap((v, i) => differences(v, b[i], `${path}[${i}]`));
+	}
+	if (a && b && typeof a === 'object' && typeof b === 'object') {
+		const keys = Object.keys(a).filter((k) => k in b);
+		return keys.flatMap((k) => differences((a as Record<string, unknown>)[k], (b as Record<string, unknown>)[k], `${path}.${k}`));
+	}
+	return a === b ? [] : [`${path}: ${JSON.stringify(a)} vs ${JSON.stringify(b)}`];
+}
+const byFamily = (rows: Record<string, unknown>[]) => [...rows].sort((p, q) => String(p.family_id ?? '').localeCompare(String(q.family_id ?? '')));
+for (const name of ['distribution', 'compare', 'check'] as const) {
+	const [raw, summary] = [byFamily(await asShop(bare[name](byKey[name]))), byFamily(await asShop(summaryBare[name]))];
+	const diff = differences(raw, summary);
+	if (diff.length) throw new Error(`the summary SQL of ${name} differs from its raw SQL: ${diff.slice(0, 5).join('; ')}`);
+}
+const [selected] = (await asShop(`
+	select count(*) filter (where family_id = ${lit(ids.family)} and series_key = ${keyAR('exhaust')})::int as distribution,
+		count(*) filter (where series_key = ${keyAR('exhaust')})::int as compare, count(*)::int as rates
+	from readings r where r.shop_id = ${lit(ids.shop)} and ${byKey.rates}`)) as { distribution: number; compare: number; rates: number }[];
+log(`summary SQL agrees with raw SQL for distribution, compare and check`);
+
 const routes = {
 	distribution: '/api/v1/stats/distribution?measurement=clearance&family=ALDER-4&side=exhaust&stage=as_received',
 	compare: '/api/v1/stats/compare?measurement=clearance&side=exhaust&stage=as_received',
@@ -173,17 +301,21 @@ const routes = {
 type Route = keyof typeof routes;
 
 const dir = mkdtempSync(join(tmpdir(), 'lapmark-bench-'));
-/** Median time of a statement through psql (client-side \timing, output discarded). */
-function psqlMedian(query: string): number {
+/** Times of a statement through psql (client-side \timing, output discarded) after up to 3 untimed
+ * runs, as the app's role with the bench shop set (or, for `scope: 'system'`, across shops). */
+function psqlTimes(query: string, opts: { runs?: number; scope?: 'shop' | 'system' } = {}): number[] {
+	const n = opts.runs ?? runs;
 	const file = join(dir, 'q.sql');
-	const body = [`\\set ON_ERROR_STOP on`, `set lapmark.shop_id = '${ids.shop}';`, '\\o /dev/null', ...Array(3).fill(`${query};`), '\\timing on', ...Array(runs).fill(`${query};`)];
+	const scope = opts.scope === 'system' ? `set lapmark.system = 'on';` : `set lapmark.shop_id = '${ids.shop}';`;
+	const body = [`\\set ON_ERROR_STOP on`, scope, '\\o /dev/null', ...Array(Math.min(3, n)).fill(`${query};`), '\\timing on', ...Array(n).fill(`${query};`)];
 	writeFileSync(file, body.join('\n') + '\n');
 	const out = spawnSync(psqlBin, ['-X', '-q', '-d', url!, '-f', file], { encoding: 'utf8' });
 	if (out.status !== 0) throw new Error(`psql failed: ${out.stderr}`);
 	const times = [...out.stdout.matchAll(/Time: ([\d.]+) ms/g)].map((m) => Number(m[1]));
-	if (times.length !== runs) throw new Error(`psql printed ${times.length} timings, expected ${runs}`);
-	return median(times);
+	if (times.length !== n) throw new Error(`psql printed ${times.length} timings, expected ${n}`);
+	return times;
 }
+const psqlMedian = (query: string, opts: { runs?: number; scope?: 'shop' | 'system' } = {}) => median(psqlTimes(query, opts));
 
 const server = spawn('node', ['build'], {
 	env: {
@@ -207,7 +339,7 @@ try {
 		await new Promise((r) => setTimeout(r, 200));
 	}
 
-	const httpMedian = async (path: string) => {
+	const httpTimes = async (path: string, n = runs) => {
 		const once = async () => {
 			const t0 = performance.now();
 			const res = await fetch(base + path, { headers: { authorization: `Bearer ${owner.token}`, accept: 'application/json' } });
@@ -219,9 +351,10 @@ try {
 		// Warm-up; the first may meet a keep-alive socket the server has just closed while psql ran.
 		for (let i = 0; i < 3; i++) await once().catch(() => once());
 		const times: number[] = [];
-		for (let i = 0; i < runs; i++) times.push(await once());
-		return median(times);
+		for (let i = 0; i < n; i++) times.push(await once());
+		return times;
 	};
+	const httpMedian = async (path: string) => median(await httpTimes(path));
 
 	// The floor every API request pays: token lookup, a transaction, JSON.
 	const floorMs = r1(await httpMedian('/api/v1/me'));
@@ -244,27 +377,57 @@ try {
 		return median(times);
 	};
 
-	const results = {} as Record<Route, { ms: number; sqlMs: number; ratio: number; sqlEnumMs: number; serviceMs: number }>;
+	type Result = { ms: number; sqlMs: number; ratio: number; summarySqlMs: number | null; summaryRatio: number | null; sqlEnumMs: number; serviceMs: number };
+	const results = {} as Record<Route, Result>;
+	const ratio = (a: number, b: number) => Math.round((a / b) * 100) / 100;
+	// The route and its SQL baselines are timed in alternating blocks (BENCH_BLOCKS, default 4, of
+	// runs / blocks each), so that a burst of load from elsewhere on the machine falls on both
+	// sides of a ratio rather than on one; the medians are over all the runs.
+	const blocks = Math.max(1, Math.min(runs, Number(process.env.BENCH_BLOCKS ?? 4)));
 	for (const name of Object.keys(routes) as Route[]) {
-		const ms = await httpMedian(routes[name]);
-		const sqlMs = psqlMedian(bare[name](byKey[name]));
+		const t = { http: [] as number[], sql: [] as number[], summary: [] as number[] };
+		for (let b = 0; b < blocks; b++) {
+			const n = Math.floor(runs / blocks) + (b < runs % blocks ? 1 : 0);
+			t.http.push(...(await httpTimes(routes[name], n)));
+			t.sql.push(...psqlTimes(bare[name](byKey[name]), { runs: n }));
+			if (name !== 'rates') t.summary.push(...psqlTimes(summaryBare[name], { runs: n }));
+		}
+		const ms = median(t.http);
+		const sqlMs = median(t.sql);
+		const summarySqlMs = t.summary.length ? median(t.summary) : null;
 		const sqlEnumMs = psqlMedian(bare[name](byEnum[name]));
 		const serviceMs = await inProcess(services[name]);
-		results[name] = { ms: r1(ms), sqlMs: r1(sqlMs), ratio: Math.round((ms / sqlMs) * 100) / 100, sqlEnumMs: r1(sqlEnumMs), serviceMs: r1(serviceMs) };
+		results[name] = {
+			ms: r1(ms),
+			sqlMs: r1(sqlMs),
+			ratio: ratio(ms, sqlMs),
+			summarySqlMs: summarySqlMs === null ? null : r1(summarySqlMs),
+			summaryRatio: summarySqlMs === null ? null : ratio(ms, summarySqlMs),
+			sqlEnumMs: r1(sqlEnumMs),
+			serviceMs: r1(serviceMs)
+		};
 	}
 	await app.sql.end();
+	const wholeTableMs = process.env.BENCH_WHOLE === '0' ? null : r1(psqlMedian(wholeTable, { runs: 3, scope: 'system' }));
 
-	console.log(`\nStatistics routes at ${seeded.counts.readings.toLocaleString('en-US')} readings (median of ${runs}; HTTP with an API token vs psql, both with row-level security)`);
-	console.log('route          HTTP ms   bare SQL ms   ratio   in-process ms   bare SQL filtering enum columns ms');
+	const cell = (x: number | null, w: number, digits?: number) => (x === null ? '–' : digits === undefined ? String(x) : x.toFixed(digits)).padStart(w);
+	console.log(`\nStatistics routes at ${readings.toLocaleString('en-US')} readings (median of ${runs}, in ${blocks} alternating blocks; HTTP with an API token vs psql, both with row-level security)`);
+	console.log('route          HTTP ms   raw SQL ms   ratio   summary SQL ms   summary ratio   in-process ms   raw SQL on enum columns ms');
 	for (const [name, r] of Object.entries(results)) {
 		console.log(
-			`${name.padEnd(14)} ${String(r.ms).padStart(7)}   ${String(r.sqlMs).padStart(11)}   ${r.ratio.toFixed(2).padStart(5)}   ${String(r.serviceMs).padStart(13)}   ${String(r.sqlEnumMs).padStart(10)}`
+			`${name.padEnd(14)} ${cell(r.ms, 7)}   ${cell(r.sqlMs, 10)}   ${cell(r.ratio, 5, 2)}   ${cell(r.summarySqlMs, 14)}   ${cell(r.summaryRatio, 13, 2)}   ${cell(r.serviceMs, 13)}   ${cell(r.sqlEnumMs, 10)}`
 		);
 	}
-	console.log('bare SQL filters on series_key, the index a person would use; "enum columns" filters measurement/stage/side,');
-	console.log('which row-level security keeps out of any index scan. In-process: the service on a direct connection, no HTTP.');
-	console.log(`(GET /api/v1/me, token and transaction only: ${floorMs} ms)`);
-	console.log(`targets: distribution, compare, rates under 300 ms and within 1.5× of bare SQL; check under 20 ms`);
+	console.log('raw SQL: the bare aggregate over the readings of the same selection (percentile_cont, avg, stddev_samp, Tukey and limit');
+	console.log('counts), filtered on series_key, the index a person would use; "ratio" is HTTP / raw SQL, as the targets mean it.');
+	console.log('summary SQL: the same figures read by hand from reading_summaries and reading_value_counts in one statement, which');
+	console.log('is what the routes read; "summary ratio" is HTTP / summary SQL (rates keep no summaries). "enum columns" filters');
+	console.log('measurement/stage/side, which row-level security keeps out of any index scan. In-process: the service on a direct');
+	console.log('connection, no HTTP and no token.');
+	console.log(`selections: distribution and check ${selected.distribution.toLocaleString('en-US')} readings (one family × series), compare ${selected.compare.toLocaleString('en-US')} (every family, one series), rates ${selected.rates.toLocaleString('en-US')} (every family, two series)`);
+	if (wholeTableMs !== null) console.log(`for scale: that raw aggregate over all ${readings.toLocaleString('en-US')} readings, per shop × family × series: ${wholeTableMs} ms (median of 3)`);
+	console.log(`(GET /api/v1/me, the token check alone: ${floorMs} ms)`);
+	console.log(`targets: distribution, compare, rates under 300 ms and within 1.5× of raw SQL; check under 20 ms`);
 
 	// ------------------------------------------------------------------------------------------
 	// 5. What the triggers cost
@@ -295,13 +458,20 @@ try {
 				if (e.message !== 'rollback') throw e;
 			});
 		console.log(
-			`readings triggers, ${seeded.counts.readings.toLocaleString('en-US')} rows in one statement: insert ${trigger.insertWithMs} ms with, ${trigger.insertWithoutMs} ms without; delete ${trigger.deleteWithMs} ms with, ${trigger.deleteWithoutMs} ms without`
+			`readings triggers, ${readings.toLocaleString('en-US')} rows in one statement: insert ${trigger.insertWithMs} ms with, ${trigger.insertWithoutMs} ms without; delete ${trigger.deleteWithMs} ms with, ${trigger.deleteWithoutMs} ms without`
 		);
 	}
 
 	const line = {
-		readings: seeded.counts.readings,
-		routes: Object.fromEntries(Object.entries(results).map(([k, v]) => [k, { ms: v.ms, sqlMs: v.sqlMs, ratio: v.ratio }])),
+		readings,
+		routes: Object.fromEntries(
+			Object.entries(results).map(([k, v]) => [
+				k,
+				{ ms: v.ms, sqlMs: v.sqlMs, ratio: v.ratio, ...(v.summarySqlMs === null ? {} : { summarySqlMs: v.summarySqlMs, summaryRatio: v.summaryRatio }) }
+			])
+		),
+		selectedReadings: selected,
+		wholeTableSqlMs: wholeTableMs,
 		apiFloorMs: floorMs,
 		sqlOnEnumColumnsMs: Object.fromEntries(Object.entries(results).map(([k, v]) => [k, v.sqlEnumMs])),
 		inProcessMs: Object.fromEntries(Object.entries(results).map(([k, v]) => [k, v.serviceMs])),

@@ -4,10 +4,14 @@ import { handle as authHandle } from './auth';
 import { POLICY, operationOf } from '$lib/server/auth/access';
 import { actorFromBearer, actorFromSession } from '$lib/server/auth/actor';
 import { requireRole, requireUser } from '$lib/server/auth/guards';
-import { sql } from '$lib/server/db';
+import { db, sql } from '$lib/server/db';
 import { startMailRetries } from '$lib/server/mail';
+import { warmOverviews } from '$lib/server/queries/overview';
+import { building } from '$app/environment';
 
 startMailRetries();
+// The overview's slowest figure, worked out once per shop in the background after a start.
+if (!building) setTimeout(() => void warmOverviews(db), 1000).unref();
 
 // adapter-node closes the HTTP server on SIGTERM/SIGINT, then emits this: close the database
 // pool so the process can exit.

@@ -47,6 +47,18 @@ export const DECISION_KINDS = [
 	'knurl_guide'
 ] as const;
 export type DecisionKind = (typeof DECISION_KINDS)[number];
+
+/** How a decision reads on screen and in reports. */
+export const DECISION_LABEL: Record<DecisionKind, string> = {
+	reuse: 'Reuse as is',
+	lap: 'Lap only',
+	recut_seat: 'Recut the seat',
+	reface_valve: 'Reface the valve',
+	replace_valve: 'Replace the valve',
+	replace_seat: 'Replace the seat insert',
+	replace_guide: 'Replace the guide',
+	knurl_guide: 'Knurl and ream the guide'
+};
 export type Role = (typeof ROLES)[number];
 
 export type CanonicalUnit = 'mm' | 'um' | 'pct' | 's';

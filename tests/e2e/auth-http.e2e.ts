@@ -97,20 +97,52 @@ describe('API tokens', () => {
 	}
 	const me = (t: string) => fetch(`${baseURL}/api/v1/me`, { headers: { authorization: `Bearer ${t}` } });
 
+	const lastUsed = async (t: string) => {
+		const [row] = await withSystem(db, (tx) =>
+			tx.execute<{ at: string | null }>(raw`select last_used_at::text as at from api_tokens where token_hash = ${sha256Hex(t)}`)
+		);
+		return row.at;
+	};
+
 	it('a live token works and records its use', async () => {
 		const t = await token({});
+		expect(await lastUsed(t)).toBeNull();
 		const res = await me(t);
 		expect(res.status).toBe(200);
 		expect(await res.json()).toMatchObject({ role: 'engineer', via: 'token', shop: { id: ctx.shop.id } });
+		expect(await lastUsed(t)).not.toBeNull();
+	});
+
+	it('records a token’s use at most once a minute', async () => {
+		const t = await token({});
+		await me(t);
+		const first = await lastUsed(t);
+		expect((await me(t)).status).toBe(200);
+		expect(await lastUsed(t)).toBe(first);
+		await withSystem(db, (tx) => tx.execute(raw`update api_tokens set last_used_at = now() - interval '2 minutes' where token_hash = ${sha256Hex(t)}`));
+		const stale = await lastUsed(t);
+		expect((await me(t)).status).toBe(200);
+		expect(Date.parse((await lastUsed(t))!)).toBeGreaterThan(Date.parse(stale!));
+	});
+
+	it('refuses the token of someone who has left the shop, and records no use', async () => {
+		const other = await shopWithPeople(db, 'authhttp-left');
+		const t = await token({ userId: other.people.engineer.userId });
+		const res = await me(t);
+		expect(res.status).toBe(401);
+		expect((await res.json()).message).toBe('The token is unknown, expired or revoked.');
+		expect(await lastUsed(t)).toBeNull();
 	});
 
 	it.each([
 		['an expired token', { expiresAt: new Date(Date.now() - 60_000) }],
 		['a revoked token', { revokedAt: new Date() }]
 	])('refuses %s with 401', async (_n, over) => {
-		const res = await me(await token(over));
+		const t = await token(over);
+		const res = await me(t);
 		expect(res.status).toBe(401);
 		expect((await res.json()).message).toBe('The token is unknown, expired or revoked.');
+		expect(await lastUsed(t)).toBeNull();
 	});
 
 	it.each([

@@ -154,12 +154,25 @@ describe('POST /api/v1/imports', () => {
 				await new Promise((r) => setTimeout(r, 200));
 			}
 			let sent = 0;
+			let killed = false;
+			const batchStatus = async () => {
+				const [b] = await sql.begin(async (t) => {
+					await t`select set_config('lapmark.shop_id', ${shopId}, true)`;
+					return t<{ status: string }[]>`select status from import_batches where shop_id = ${shopId} and file_name = 'killed.csv'`;
+				});
+				return b?.status ?? null;
+			};
 			const stream = new ReadableStream<Uint8Array>({
 				async pull(c) {
 					if (sent === 0) c.enqueue(new TextEncoder().encode(`${HEADER}\n`));
 					c.enqueue(new TextEncoder().encode(Array.from({ length: 500 }, (_, i) => row(`KILL-${sent}`, i)).join('\n') + '\n'));
 					sent++;
-					if (sent === 15) child.kill('SIGKILL');
+					// Kill once the import is under way: its batch row committed and rows flowing.
+					if (sent >= 15 && !killed && (await batchStatus()) === 'running') {
+						killed = true;
+						child.kill('SIGKILL');
+					}
+					if (sent > 3000) c.close(); // the import never showed up: let the test fail plainly
 					await new Promise((r) => setTimeout(r, 30));
 				}
 			});

@@ -1,5 +1,5 @@
 // Debian's chromium driven by playwright-core: never a browser download.
-import { mkdirSync } from 'node:fs';
+import { mkdirSync, readFileSync } from 'node:fs';
 import { chromium, type Browser, type Page } from 'playwright-core';
 
 export const SCREENSHOTS = new URL('../e2e/screenshots/', import.meta.url).pathname;
@@ -31,4 +31,36 @@ export async function signInWithPassword(page: Page, baseURL: string, email: str
 	await page.getByLabel('Password').fill(password);
 	await page.getByRole('button', { name: 'Sign in' }).click();
 	await page.waitForURL((url) => !url.pathname.startsWith('/signin'));
+}
+
+/** Charts and lists on the page have settled: nothing loading, and none in an error state. */
+export async function chartsSettled(page: Page, timeout = 30_000) {
+	await page.waitForFunction(() => document.querySelectorAll('[data-state="loading"],[aria-busy="true"]').length === 0, null, { timeout });
+	const errors = await page.locator('[data-state="error"]').allTextContents();
+	if (errors.length) throw new Error(`charts in an error state on ${page.url()}: ${errors.join(' | ')}`);
+}
+
+export interface AxeViolation {
+	id: string;
+	impact: string | null;
+	help: string;
+	nodes: { target: string[] }[];
+}
+
+/**
+ * axe-core (Deque's accessibility rules engine, from the npm registry) run in the page against
+ * WCAG 2.x A and AA; returns the serious and critical violations.
+ */
+export async function axeSerious(page: Page): Promise<AxeViolation[]> {
+	if (!(await page.evaluate(() => 'axe' in window))) {
+		// Evaluated through the debugging protocol, so the page's content security policy (which
+		// refuses inline scripts) does not apply to the test's own tool.
+		await page.evaluate(readFileSync(new URL('../../node_modules/axe-core/axe.min.js', import.meta.url), 'utf8'));
+	}
+	const violations = await page.evaluate(async () => {
+		// @ts-expect-error injected above
+		const r = await window.axe.run(document, { runOnly: { type: 'tag', values: ['wcag2a', 'wcag2aa', 'wcag21a', 'wcag21aa'] } });
+		return r.violations.map((v: AxeViolation) => ({ id: v.id, impact: v.impact, help: v.help, nodes: v.nodes.slice(0, 5).map((n) => ({ target: n.target })) }));
+	});
+	return (violations as AxeViolation[]).filter((v) => v.impact === 'serious' || v.impact === 'critical');
 }

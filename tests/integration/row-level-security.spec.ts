@@ -2,9 +2,12 @@
 // sees only the active shop's rows, and cannot write into another shop.
 import { sql as raw } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { withShop } from '../../src/lib/server/db/scope';
-import { heads, readings } from '../../src/lib/server/db/schema';
+import { newApiToken, sha256Hex } from '../../src/lib/server/auth/tokens';
+import { withShop, withSystem } from '../../src/lib/server/db/scope';
+import { apiTokens, heads, memberships, readings, users } from '../../src/lib/server/db/schema';
+import { liveToken } from '../../src/lib/server/queries/memberships';
 import { makeShop, pgError, testDb } from '../helpers/db';
+import { uniqueEmail } from '../helpers/people';
 
 const { db, sql } = testDb();
 let a: Awaited<ReturnType<typeof makeShop>>;
@@ -51,5 +54,29 @@ describe('row-level security', () => {
 			withShop(db, a.shop.id, (tx) => tx.insert(heads).values({ shopId: b.shop.id, familyId: b.family.id, serial: 'SNEAK', receivedOn: '2026-05-01' }))
 		);
 		expect(err.code).toBe('42501');
+	});
+
+	it('the token lookup looks across shops for itself only', async () => {
+		const token = newApiToken();
+		await withSystem(db, async (tx) => {
+			const [u] = await tx.insert(users).values({ email: uniqueEmail('rls-token') }).returning();
+			await tx.insert(memberships).values({ shopId: b.shop.id, userId: u.id, role: 'viewer' });
+			await tx.insert(apiTokens).values({ shopId: b.shop.id, userId: u.id, name: 'rls', prefix: token.slice(0, 10), tokenHash: sha256Hex(token), role: 'viewer' });
+		});
+		// Inside shop A's transaction: it finds shop B's token, then A's scope is back as it was.
+		const seen = await withShop(db, a.shop.id, async (tx) => {
+			const row = await liveToken(tx, sha256Hex(token));
+			const [after] = await tx.execute<{ system: string | null; tokens: number; heads: number }>(raw`
+				select current_setting('lapmark.system', true) as system,
+					(select count(*)::int from api_tokens where shop_id = ${b.shop.id}) as tokens,
+					(select count(*)::int from heads where id = ${headB}) as heads`);
+			return { row, after };
+		});
+		expect(seen.row).toMatchObject({ shopId: b.shop.id, tokenRole: 'viewer', memberRole: 'viewer' });
+		expect(seen.after).toEqual({ system: '', tokens: 0, heads: 0 });
+		// On its own (no transaction): the next statement sees nothing either.
+		expect(await liveToken(db, sha256Hex(token))).toMatchObject({ shopId: b.shop.id });
+		const [none] = await db.execute<{ n: number }>(raw`select count(*)::int as n from api_tokens`);
+		expect(none.n).toBe(0);
 	});
 });

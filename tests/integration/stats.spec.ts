@@ -336,6 +336,44 @@ describe('rates', () => {
 		expect(r.sideDifference).toBeNull();
 	});
 
+	it('counts a valve position once, judges it by the limits of each reading’s UTC day, and skips readings before any limits', async () => {
+		const own = await makeShop(db, 'stats-rates');
+		const at = (iso: string) => new Date(iso);
+		const r = await withShop(db, own.shop.id, async (t) => {
+			const [h] = await t.insert(heads).values({ shopId: own.shop.id, familyId: own.family.id, serial: 'R-1', receivedOn: '2026-01-02' }).returning();
+			const row = (cylinder: number, valve: number, value: number, measuredAt: string): NewReading => ({
+				...base({}),
+				shopId: own.shop.id,
+				familyId: own.family.id,
+				headId: h.id,
+				cylinder,
+				valve,
+				value,
+				measuredAt: at(measuredAt)
+			});
+			await t.insert(limits).values([
+				{ shopId: own.shop.id, familyId: own.family.id, measurement: 'clearance', side: 'intake', stage: 'as_received', min: null, max: 0.1, effectiveFrom: '2026-02-01' },
+				{ shopId: own.shop.id, familyId: own.family.id, measurement: 'clearance', side: 'intake', stage: 'as_received', min: null, max: 0.08, effectiveFrom: '2026-03-01' }
+			]);
+			await t.insert(readings).values([
+				row(1, 1, 0.5, '2026-01-15T10:00:00Z'), // before any limits: not judged, not counted
+				row(1, 2, 0.05, '2026-02-10T10:00:00Z'), // one position, two readings, the second over 0.10
+				row(1, 2, 0.12, '2026-02-20T10:00:00Z'),
+				row(2, 1, 0.09, '2026-02-28T23:59:00Z'), // under 0.10, the last minute of February
+				row(2, 2, 0.09, '2026-03-01T00:00:00Z'), // over 0.08 from the first instant of March
+				row(3, 1, 0.09, '2026-02-28T23:30:00Z'), // within the limits of each day
+				row(3, 1, 0.07, '2026-03-02T10:00:00Z')
+			]);
+			return rates(t, own.shop.id, { check: { kind: 'measurement', measurement: 'clearance' } });
+		});
+		expect(r.overall).toMatchObject({ failures: 2, n: 4 });
+		expect(r.byCylinder.map((c) => [c.side, c.cylinder, c.failures, c.n])).toEqual([
+			['intake', 1, 1, 1],
+			['intake', 2, 1, 2],
+			['intake', 3, 0, 1]
+		]);
+	});
+
 	it('decision rates: 15 of 148 positions (Newcombe 1998 Table I: Wilson 0.0624–0.1605), chi-square for the sides', async () => {
 		await tx(async (t) => {
 			const hs = await t

@@ -3,7 +3,7 @@ import type { RequestEvent } from '@sveltejs/kit';
 import type { Role } from '$lib/measurements';
 import { db } from '../db';
 import { withSystem } from '../db/scope';
-import { liveTokenByHash, membershipsOf, touchToken, userById, type ShopMembership } from '../queries/memberships';
+import { liveToken, membershipsOf, userById, type ShopMembership } from '../queries/memberships';
 import { lowerRole } from './access';
 import { looksLikeApiToken, sha256Hex } from './tokens';
 
@@ -30,32 +30,30 @@ export async function actorFromBearer(header: string | null): Promise<BearerResu
 	if (!m) return { error: 'The Authorization header must be "Bearer <token>".' };
 	const token = m[1];
 	if (!looksLikeApiToken(token)) return { error: 'That is not a Lapmark API token.' };
-	return withSystem(db, async (tx) => {
-		const row = await liveTokenByHash(tx, sha256Hex(token));
-		if (!row || !row.memberRole) return { error: 'The token is unknown, expired or revoked.' };
-		await touchToken(tx, row.id);
-		const role = lowerRole(row.tokenRole, row.memberRole);
-		return {
-			actor: {
-				userId: row.userId,
-				email: row.email,
-				name: row.name,
-				shopId: row.shopId,
-				shopName: row.shopName,
-				role,
-				via: 'token' as const,
-				memberships: [{ shopId: row.shopId, shopName: row.shopName, shopSlug: row.shopSlug, role }]
-			}
-		};
-	});
+	// One statement on its own: no transaction, no system scope (see lapmark_token_actor).
+	const row = await liveToken(db, sha256Hex(token));
+	if (!row) return { error: 'The token is unknown, expired or revoked.' };
+	const role = lowerRole(row.tokenRole, row.memberRole);
+	return {
+		actor: {
+			userId: row.userId,
+			email: row.email,
+			name: row.name,
+			shopId: row.shopId,
+			shopName: row.shopName,
+			role,
+			via: 'token' as const,
+			memberships: [{ shopId: row.shopId, shopName: row.shopName, shopSlug: row.shopSlug, role }]
+		}
+	};
 }
 
 /** Resolve the signed-in user and the active shop (remembered in a cookie, checked every time). */
 export async function actorFromSession(event: RequestEvent, userId: string): Promise<Actor | null> {
 	return withSystem(db, async (tx) => {
-		const user = await userById(tx, userId);
+		// Both at once: postgres.js pipelines them on the transaction's connection.
+		const [user, shops] = await Promise.all([userById(tx, userId), membershipsOf(tx, userId)]);
 		if (!user) return null;
-		const shops = await membershipsOf(tx, userId);
 		const wanted = event.cookies.get(ACTIVE_SHOP_COOKIE);
 		const active = shops.find((s) => s.shopId === wanted) ?? shops[0] ?? null;
 		return {

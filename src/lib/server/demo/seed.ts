@@ -200,7 +200,8 @@ export async function seedDemo(sql: postgres.Sql, opts: SeedOptions): Promise<Se
 	let analyzeMs = 0;
 	if (opts.analyze) {
 		const ta = performance.now();
-		await sql`analyze heads, readings, decisions, cylinder_leakage`;
+		// VACUUM also sets the visibility map, so the covering indexes answer without table reads.
+		await sql`vacuum (analyze) heads, readings, decisions, cylinder_leakage`;
 		analyzeMs = performance.now() - ta;
 	}
 	const rows = Object.values(data.counts).reduce((a, b) => a + b, 0);

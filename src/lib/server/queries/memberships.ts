@@ -1,7 +1,7 @@
-import { and, asc, eq, gt, isNull, or, sql } from 'drizzle-orm';
+import { asc, eq, sql } from 'drizzle-orm';
 import type { Role } from '$lib/measurements';
 import type { Conn } from '../db/scope';
-import { apiTokens, memberships, shops, users } from '../db/schema';
+import { memberships, shops, users } from '../db/schema';
 
 export interface ShopMembership {
 	shopId: string;
@@ -29,41 +29,26 @@ export async function userById(conn: Conn, userId: string) {
 	return u ?? null;
 }
 
-/** The token behind a hash, if it is live, with its owner's current role in the token's shop. */
-export async function liveTokenByHash(conn: Conn, tokenHash: string) {
-	const [row] = await conn
-		.select({
-			id: apiTokens.id,
-			shopId: apiTokens.shopId,
-			userId: apiTokens.userId,
-			tokenRole: apiTokens.role,
-			memberRole: memberships.role,
-			shopName: shops.name,
-			shopSlug: shops.slug,
-			email: users.email,
-			name: users.name,
-			expiresAt: apiTokens.expiresAt,
-			revokedAt: apiTokens.revokedAt
-		})
-		.from(apiTokens)
-		.innerJoin(users, eq(users.id, apiTokens.userId))
-		.innerJoin(shops, eq(shops.id, apiTokens.shopId))
-		.leftJoin(memberships, and(eq(memberships.shopId, apiTokens.shopId), eq(memberships.userId, apiTokens.userId)))
-		.where(
-			and(
-				eq(apiTokens.tokenHash, tokenHash),
-				isNull(apiTokens.revokedAt),
-				or(isNull(apiTokens.expiresAt), gt(apiTokens.expiresAt, sql`now()`))
-			)
-		)
-		.limit(1);
-	return row ?? null;
-}
+export type LiveToken = {
+	tokenId: string;
+	shopId: string;
+	userId: string;
+	tokenRole: Role;
+	/** The user's role in the token's shop now (a token of a former member is not live). */
+	memberRole: Role;
+	shopName: string;
+	shopSlug: string;
+	email: string;
+	name: string | null;
+};
 
-export async function touchToken(conn: Conn, id: string) {
-	// At most one write a minute per token: last-used is for people, not an access log.
-	await conn
-		.update(apiTokens)
-		.set({ lastUsedAt: sql`now()` })
-		.where(and(eq(apiTokens.id, id), or(isNull(apiTokens.lastUsedAt), sql`${apiTokens.lastUsedAt} < now() - interval '1 minute'`)));
+/**
+ * The token behind a hash, if it is live (not revoked, not expired, its user still a member of
+ * its shop), with the owner's current role there; touches last_used_at at most once a minute.
+ * One statement, lapmark_token_actor (drizzle/0005), which looks across shops for this lookup
+ * only: no transaction and no system scope around it.
+ */
+export async function liveToken(conn: Conn, tokenHash: string): Promise<LiveToken | null> {
+	const [row] = await conn.execute<LiveToken>(sql`select * from lapmark_token_actor(${tokenHash})`);
+	return row ?? null;
 }

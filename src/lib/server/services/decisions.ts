@@ -10,16 +10,7 @@ import { DECISION_KINDS } from '../db/schema/enums';
 
 export type DecisionKind = (typeof DECISION_KINDS)[number];
 
-export const DECISION_LABEL: Record<DecisionKind, string> = {
-	reuse: 'Reuse as is',
-	lap: 'Lap only',
-	recut_seat: 'Recut the seat',
-	reface_valve: 'Reface the valve',
-	replace_valve: 'Replace the valve',
-	replace_seat: 'Replace the seat insert',
-	replace_guide: 'Replace the guide',
-	knurl_guide: 'Knurl and ream the guide'
-};
+export { DECISION_LABEL } from '$lib/measurements';
 
 export interface Bounds {
 	min: number | null;
