@@ -9,7 +9,7 @@ import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import { demoSignIns } from '../../src/lib/server/demo/generate';
 import { withSystem } from '../../src/lib/server/db/scope';
 import { raw, testDb } from '../helpers/db';
-import { launch, shot, signInWithPassword } from '../helpers/browser';
+import { axeSerious, launch, shot, signInWithPassword } from '../helpers/browser';
 
 const baseURL = inject('baseURL');
 const { db, sql } = testDb();
@@ -197,5 +197,29 @@ describe('the API guide', () => {
 		await readings.getByText('sort', { exact: true }).first().waitFor();
 		await shot(page, 'tables-api-guide');
 		await page.close();
+	});
+});
+
+describe('accessibility', () => {
+	it('finds no serious or critical axe-core violation on the table pages, light or dark', async () => {
+		const found: string[] = [];
+		for (const colorScheme of ['light', 'dark'] as const) {
+			const context = await browser.newContext({ viewport: { width: 1440, height: 1000 }, colorScheme });
+			const page = await context.newPage();
+			await signInWithPassword(page, baseURL, people.engineer.email, people.engineer.password);
+			for (const [path, ready] of [
+				['/outliers', 'outlier-count'],
+				['/rates', 'rates-by-family'],
+				['/explore?measurement=clearance', 'readings-table'],
+				['/api-guide', 'api-operation']
+			]) {
+				await page.goto(`${baseURL}${path}`);
+				await page.getByTestId(ready).first().waitFor();
+				for (const v of await axeSerious(page)) found.push(`${colorScheme} ${path}: ${v.impact} ${v.id} (${v.help}) at ${v.nodes.map((n) => n.target.join(' ')).join(', ')}`);
+			}
+			if (colorScheme === 'dark') await shot(page, 'tables-api-guide-dark');
+			await context.close();
+		}
+		expect(found).toEqual([]);
 	});
 });
