@@ -27,11 +27,11 @@ import { join } from 'node:path';
 import postgres from 'postgres';
 import { runMigrations } from '../scripts/migrate';
 import { seriesKey } from '../src/lib/server/db/series';
-import { demoSignIns, generateDemo } from '../src/lib/server/demo/generate';
-import { seedDemo } from '../src/lib/server/demo/seed';
+import { demoSignIns } from '../src/lib/server/demo/generate';
 import { createDb } from '../src/lib/server/db/client';
 import { withShop } from '../src/lib/server/db/scope';
 import { checkReading, compare, distribution, rates } from '../src/lib/server/services/stats';
+import { seedScaled } from './seed';
 
 const url = process.env.BENCH_DATABASE_URL;
 const psqlBin = process.env.BENCH_PSQL ?? 'psql';
@@ -69,28 +69,10 @@ let seedMs = 0;
 if (readings > 0) {
 	log(`reusing ${readings} readings already in the database (BENCH_REUSE)`);
 } else {
-	// Readings per original job, from a small run of the same generator; then scale to the target.
-	const probe = generateDemo({ endDate, headsTotal: 400 });
-	let headsTotal = Math.ceil(target / (probe.counts.readings / 400));
-	let data = generateDemo({ endDate, headsTotal });
-	while (data.counts.readings < target) {
-		headsTotal += Math.ceil((target - data.counts.readings) / (probe.counts.readings / 400)) + 1;
-		data = generateDemo({ endDate, headsTotal });
-	}
-	const seedStart = performance.now();
-	const seeded = await seedDemo(sql, {
-		endDate,
-		headsTotal,
-		data,
-		analyze: true,
-		log: (m) => {
-			const hit = /^\s+readings: \d+ rows \(copy \d+ ms, insert (\d+) ms\)/.exec(m);
-			if (hit) readingsInsertMs += Number(hit[1]);
-		}
-	});
-	seedMs = performance.now() - seedStart;
-	readings = seeded.counts.readings;
-	log(`seeded ${readings} readings on ${seeded.counts.heads} heads in ${(seedMs / 1000).toFixed(1)} s (INSERT … SELECT into readings, triggers included: ${(readingsInsertMs / 1000).toFixed(1)} s)`);
+	const out = await seedScaled(sql, target, endDate, log);
+	seedMs = out.seedMs;
+	readingsInsertMs = out.readingsInsertMs;
+	readings = out.seeded.counts.readings;
 }
 
 // Steady state, as autovacuum leaves it: statistics and visibility maps for every table.

@@ -7,6 +7,7 @@
 #   bash scripts/bench.sh import    the CSV import against psql \copy (bench/import.ts)
 #   bash scripts/bench.sh stats     statistics routes over HTTP against bare SQL (bench/stats.ts)
 #   bash scripts/bench.sh overview  the overview's first load in chromium on the full demo (bench/overview.ts)
+#   bash scripts/bench.sh export    the readings export, 1,000,000 rows as CSV and JSON (bench/export.ts)
 # The bench gets DATABASE_URL and BENCH_DATABASE_URL (the scratch database), PSQL and BENCH_PSQL.
 set -euo pipefail
 cd "$(dirname "$0")/.."
@@ -14,8 +15,8 @@ cd "$(dirname "$0")/.."
 
 NAME=${1:-}
 case "$NAME" in
-	stats | import | overview) SCRIPT="bench/$NAME.ts" ;;
-	*) echo "usage: bash scripts/bench.sh import|stats|overview [arguments for the bench]" >&2; exit 2 ;;
+	stats | import | overview | export) SCRIPT="bench/$NAME.ts" ;;
+	*) echo "usage: bash scripts/bench.sh import|stats|overview|export [arguments for the bench]" >&2; exit 2 ;;
 esac
 shift
 [ -f "$SCRIPT" ] || { log "$SCRIPT is not in this checkout"; exit 2; }

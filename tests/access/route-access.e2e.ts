@@ -59,7 +59,11 @@ const EXPECTED: Record<string, Record<string, Expect>> = {
 	'/api/v1/stats/wear': { GET: 'viewer' },
 	'/api/v1/stats/describe': { POST: 'viewer' },
 	'/(app)/outliers': { GET: 'machinist' },
-	'/(app)/rates': { GET: 'machinist' }
+	'/(app)/rates': { GET: 'machinist' },
+	'/api/v1/readings': { GET: 'engineer' },
+	'/(app)/explore': { GET: 'engineer' },
+	'/api/v1/openapi.json': { GET: 'public' },
+	'/(app)/api-guide': { GET: 'engineer' }
 };
 
 /** A concrete URL for a route id: groups dropped, parameters filled with harmless values. */

@@ -32,7 +32,7 @@ const day = (name: string) =>
 		.regex(/^\d{4}-\d{2}-\d{2}$/, `${name} must be a date like 2026-01-31`)
 		.refine(validDay, `${name} is not a calendar date`);
 
-const wholeNumber = (name: string, max: number) =>
+export const wholeNumber = (name: string, max: number) =>
 	z
 		.string()
 		.trim()
@@ -50,7 +50,7 @@ const decimal = (name: string) =>
 		.refine(Number.isFinite, `${name} is too large`);
 
 /** The filters every statistics route understands, with the names the page URLs use. */
-const filterShape = {
+export const filterShape = {
 	family: familyCode.optional(),
 	side: side.optional(),
 	stage: stage.optional(),
@@ -67,7 +67,7 @@ const filterShape = {
 };
 
 type Ranged = { from?: string; to?: string; mileageMin?: number; mileageMax?: number };
-function checkRanges(v: Ranged, ctx: z.RefinementCtx) {
+export function checkRanges(v: Ranged, ctx: z.RefinementCtx) {
 	if (v.from && v.to && v.from > v.to) ctx.addIssue({ code: 'custom', message: 'from must not be after to', path: ['from'] });
 	if (v.mileageMin !== undefined && v.mileageMax !== undefined && v.mileageMin > v.mileageMax) {
 		ctx.addIssue({ code: 'custom', message: 'mileageMin must not be above mileageMax', path: ['mileageMin'] });

@@ -69,7 +69,11 @@ export const POLICY: Record<string, RoutePolicy> = {
 	'/api/v1/stats/wear': { GET: 'viewer' },
 	'/api/v1/stats/describe': { POST: 'viewer' },
 	'/(app)/outliers': { GET: 'machinist' },
-	'/(app)/rates': { GET: 'machinist' }
+	'/(app)/rates': { GET: 'machinist' },
+	'/api/v1/readings': { GET: 'engineer' },
+	'/(app)/explore': { GET: 'engineer' },
+	'/api/v1/openapi.json': { GET: 'public' },
+	'/(app)/api-guide': { GET: 'engineer' }
 };
 
 /** Which operation a request is: its method, or `action:<name>` for a form action POST. */

@@ -102,7 +102,7 @@ interface Resolved {
 }
 
 /** The shop's families, and the one `code` names (404 when it names none). */
-async function resolveFamily(conn: Conn, shopId: string, code: string | undefined): Promise<Resolved> {
+export async function resolveFamily(conn: Conn, shopId: string, code: string | undefined): Promise<Resolved> {
 	const families = await shopFamilies(conn, shopId);
 	const byId = new Map(families.map((f) => [f.id, f]));
 	if (!code) return { families, byId, family: null };
@@ -115,7 +115,7 @@ async function resolveFamily(conn: Conn, shopId: string, code: string | undefine
 	return { families, byId, family };
 }
 
-function selection(q: Partial<StatsFilters>, keys: number[], family: FamilyRef | null): Selection {
+export function selection(q: Partial<StatsFilters>, keys: number[], family: FamilyRef | null): Selection {
 	return {
 		familyIds: family ? [family.id] : null,
 		keys,

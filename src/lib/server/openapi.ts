@@ -1,0 +1,350 @@
+// The OpenAPI 3.1 description of Lapmark's JSON API (/api/v1/*), served at /api/v1/openapi.json
+// and read by the API guide page. Written by hand, except the query parameters' types, which
+// come from the same zod schemas the routes validate with (zod's JSON Schema output), so the
+// document cannot drift from what the routes accept. openapi.spec.ts checks that every /api/v1
+// route of the access policy is here with each of its methods.
+import { z } from 'zod';
+import type { Role } from '$lib/measurements';
+import { DECISION_KINDS, MEASUREMENTS } from '$lib/measurements';
+import { READINGS_MAX_PAGE_SIZE, readingsQuerySchema } from '$lib/schemas/readings';
+import {
+	DESCRIBE_MAX_VALUES,
+	capabilityQuerySchema,
+	checkQuerySchema,
+	comebacksQuerySchema,
+	compareQuerySchema,
+	controlQuerySchema,
+	distributionQuerySchema,
+	outliersQuerySchema,
+	ratesQuerySchema,
+	wearQuerySchema
+} from '$lib/schemas/stats';
+import { importListSchema, importQuerySchema } from '$lib/schemas/imports';
+
+type Json = Record<string, unknown>;
+
+/** What each query parameter means; the types come from the route's schema. */
+const PARAMETER_TEXT: Record<string, string> = {
+	family: 'Engine family code, such as ALDER-4.',
+	side: 'Valve side.',
+	stage: 'as_received (measured on arrival) or final (after the work).',
+	from: 'First day of measured_at, UTC, inclusive (YYYY-MM-DD).',
+	to: 'Last day of measured_at, UTC, inclusive (YYYY-MM-DD).',
+	machinist: 'Who measured (case-insensitive, whole name).',
+	customer: "The head's customer (case-insensitive, whole name).",
+	mileageMin: "Lowest head mileage in km (heads without a mileage are left out when a mileage filter is given).",
+	mileageMax: 'Highest head mileage in km.',
+	measurement: 'The measurement key.',
+	value: 'The value to check, in `unit` (a point as decimal separator).',
+	unit: 'Unit of `value`; default the measurement’s canonical unit (mm, µm as um, % as pct, s).',
+	page: 'Page number, from 1.',
+	pageSize: 'Rows per page.',
+	sort: 'Sort key; a leading minus sorts descending.',
+	check: `What counts as a failure: a measurement key (a reading outside the limits of its day; seal tests included), or decision:<kind> with kind one of ${DECISION_KINDS.join(', ')}.`,
+	limit: 'How many of the most recent readings to chart.',
+	format: 'csv or json (default json). Leave out `page` to export every row.',
+	layout: 'wide (one column per measurement) or long (one row per reading); guessed from the header when left out.',
+	dryRun: 'Check the file without storing anything (1 or true).',
+	onReject: 'abort (default: a bad row stops the import) or skip (store the good rows, report the bad).',
+	fileName: 'Name to show in the import list.',
+	clientRef: 'Your own reference (8–64 letters, digits, - or _), to find an import that is still running.',
+	mapping: 'JSON object of file header → Lapmark column name, for headers the import does not recognise.'
+};
+
+type ZodObjectLike = { shape: Record<string, z.ZodType> };
+
+function queryParameters(schema: ZodObjectLike): Json[] {
+	return Object.entries(schema.shape).map(([name, field]) => {
+		const { $schema: _s, ...type } = z.toJSONSchema(field, { io: 'input', unrepresentable: 'any' }) as Json;
+		return {
+			name,
+			in: 'query',
+			required: !field.safeParse(undefined).success,
+			description: PARAMETER_TEXT[name] ?? '',
+			schema: type
+		};
+	});
+}
+
+const ref = (name: string) => ({ $ref: `#/components/schemas/${name}` });
+const jsonBody = (schema: Json, description: string) => ({ description, content: { 'application/json': { schema } } });
+const problem = (description: string) => ({ description, content: { 'application/json': { schema: ref('Error') } } });
+
+/** The answers every operation can give besides its own. */
+function standardErrors(role: Role | 'public'): Json {
+	if (role === 'public') return {};
+	return {
+		'400': problem('A parameter is missing or not valid; the message names it and says what to send.'),
+		'401': problem('No valid session or token.'),
+		'403': problem(`The token or user holds less than the ${role} role.`)
+	};
+}
+
+interface Operation {
+	summary: string;
+	description?: string;
+	role: Role | 'public';
+	tag: string;
+	query?: ZodObjectLike;
+	path?: Json[];
+	requestBody?: Json;
+	responses: Json;
+	/** Query string (or body) for the guide's curl example. */
+	example?: string;
+	exampleBody?: { type: string; data: string };
+}
+
+function operation(id: string, o: Operation): Json {
+	return {
+		operationId: id,
+		summary: o.summary,
+		...(o.description ? { description: o.description } : {}),
+		tags: [o.tag],
+		...(o.role === 'public' ? { security: [] } : {}),
+		'x-lapmark-role': o.role,
+		...(o.example !== undefined ? { 'x-lapmark-example': o.example } : {}),
+		...(o.exampleBody ? { 'x-lapmark-example-body': o.exampleBody } : {}),
+		parameters: [...(o.path ?? []), ...(o.query ? queryParameters(o.query) : [])],
+		...(o.requestBody ? { requestBody: o.requestBody } : {}),
+		responses: { ...o.responses, ...standardErrors(o.role) }
+	};
+}
+
+const idParam = { name: 'id', in: 'path', required: true, description: 'The import batch id (UUID).', schema: { type: 'string', format: 'uuid' } };
+const num = { type: ['number', 'null'] };
+const filtersEcho = { type: 'object', description: 'The filters the answer was computed for, as parsed.' };
+const summaryProps = {
+	n: { type: 'integer' },
+	mean: num,
+	sd: { ...num, description: 'Sample standard deviation; null for fewer than 2 readings.' },
+	min: num,
+	max: num,
+	quantiles: { type: 'object', description: 'p05, p25, p50, p75, p95 by Hyndman & Fan type 7 (PostgreSQL percentile_cont).' },
+	mad: num,
+	fences: { type: 'object', description: "Tukey's fences Q1 − 1.5·IQR and Q3 + 1.5·IQR." },
+	histogram: { type: 'array', items: { type: 'object', properties: { x0: { type: 'number' }, x1: { type: 'number' }, count: { type: 'integer' } } } }
+};
+
+const readingColumns = ['head_serial', 'family', 'customer', 'stage', 'cylinder', 'side', 'valve', 'measurement', 'value', 'unit', 'measured_at', 'measured_by', 'instrument', 'mileage_km', 'batch'];
+
+export const OPENAPI = {
+	openapi: '3.1.0',
+	info: {
+		title: 'Lapmark API',
+		version: '1',
+		description:
+			'Readings, imports and statistics of one shop. Authenticate with `Authorization: Bearer lmk_…` (make a token under Shop → API tokens; it acts with the lower of its own role and its creator’s) or a signed-in session. Every answer covers the token’s shop only. Errors are JSON `{ "message": "…" }`.'
+	},
+	servers: [{ url: '/' }],
+	security: [{ bearer: [] }, { session: [] }],
+	tags: [
+		{ name: 'Account', description: 'Who you are.' },
+		{ name: 'Readings', description: 'The stored readings, filtered and exported.' },
+		{ name: 'Statistics', description: 'Distributions, outliers, rates, capability and control charts computed where the data lives.' },
+		{ name: 'Imports', description: 'CSV files of readings in, and undone.' },
+		{ name: 'Shop', description: 'Families, limits and the overview figures.' }
+	],
+	paths: {
+		'/api/v1/me': {
+			get: operation('me', { summary: 'Who the token or session acts as', role: 'viewer', tag: 'Account', example: '', responses: { '200': jsonBody({ type: 'object', properties: { user: { type: 'object' }, shop: { type: 'object' }, role: { type: 'string' }, via: { type: 'string' } } }, 'The user, shop and role.') } })
+		},
+		'/api/v1/openapi.json': {
+			get: operation('openapi', { summary: 'This document', role: 'public', tag: 'Account', example: '', responses: { '200': jsonBody({ type: 'object' }, 'OpenAPI 3.1.') } })
+		},
+		'/api/v1/readings': {
+			get: operation('readings', {
+				summary: 'Readings, filtered: a whole export (CSV or JSON) or one page',
+				description: `Without \`page\`: every reading the filters select, oldest first, streamed (CSV columns: ${readingColumns.join(', ')}; JSON: an array of Reading). Text cells of the CSV that start with = + - @, a tab or a carriage return are prefixed with ' so a spreadsheet shows them instead of running them. With \`page\`: one page of JSON (pageSize up to ${READINGS_MAX_PAGE_SIZE}, default 50), sorted by \`sort\` (default -measuredAt).`,
+				role: 'engineer',
+				tag: 'Readings',
+				query: readingsQuerySchema as unknown as ZodObjectLike,
+				example: 'family=ALDER-4&measurement=clearance&stage=as_received&from=2026-01-01&format=csv',
+				responses: {
+					'200': {
+						description: 'The export (with Content-Disposition: attachment; filename=…), or one page.',
+						content: {
+							'text/csv': { schema: { type: 'string' } },
+							'application/json': { schema: { oneOf: [{ type: 'array', items: ref('Reading') }, ref('ReadingsPage')] } }
+						}
+					},
+					'404': problem('The family is not one of the shop’s; the message lists them.')
+				}
+			})
+		},
+		'/api/v1/check': {
+			get: operation('check', {
+				summary: 'One reading against its limits and the fleet, with a suggested decision',
+				role: 'viewer',
+				tag: 'Statistics',
+				query: checkQuerySchema as unknown as ZodObjectLike,
+				example: 'family=ALDER-4&side=exhaust&measurement=clearance&value=0.0045&unit=in',
+				responses: {
+					'200': jsonBody(
+						{ type: 'object', properties: { withinLimits: { type: ['boolean', 'null'] }, broken: { enum: ['min', 'max', null] }, percentile: num, robustZ: num, tukey: { enum: ['low', 'high', null] }, reasons: { type: 'array', items: ref('Reason') }, suggestion: { type: 'object', properties: { decision: { type: ['string', 'null'] }, rule: { type: 'string' } } } } },
+						'The verdict, the fleet figures and the suggested decision with its rule in words.'
+					),
+					'404': problem('No such family in the shop.')
+				}
+			})
+		},
+		'/api/v1/stats/distribution': {
+			get: operation('distribution', {
+				summary: 'Summary and histogram of one measurement',
+				role: 'viewer',
+				tag: 'Statistics',
+				query: distributionQuerySchema as unknown as ZodObjectLike,
+				example: 'measurement=clearance&family=ALDER-4&side=exhaust&stage=as_received',
+				responses: { '200': jsonBody({ type: 'object', properties: { ...summaryProps, filters: filtersEcho, limits: { type: ['object', 'null'] }, outside: { type: 'object' } } }, 'n, mean, sd, quantiles, MAD, fences, histogram, limits in force and the share outside them.'), '404': problem('No such family.') }
+			})
+		},
+		'/api/v1/stats/compare': {
+			get: operation('compare', {
+				summary: 'Every family side by side for one measurement, sorted by median',
+				role: 'viewer',
+				tag: 'Statistics',
+				query: compareQuerySchema as unknown as ZodObjectLike,
+				example: 'measurement=clearance&side=exhaust&stage=as_received',
+				responses: { '200': jsonBody({ type: 'object', properties: { families: { type: 'array', items: { type: 'object', properties: { family: ref('Family'), ...summaryProps } } } } }, 'One summary per family.') }
+			})
+		},
+		'/api/v1/stats/outliers': {
+			get: operation('outliers', {
+				summary: 'Unusual readings, each with every reason, paged and sorted',
+				description: 'A reading is listed when it is outside the limits of its day, outside its group’s Tukey fences, or its modified z-score is beyond 3.5.',
+				role: 'viewer',
+				tag: 'Statistics',
+				query: outliersQuerySchema as unknown as ZodObjectLike,
+				example: 'measurement=clearance&side=exhaust&sort=-z&page=1&pageSize=20',
+				responses: { '200': jsonBody({ type: 'object', properties: { total: { type: 'integer' }, page: { type: 'integer' }, pages: { type: 'integer' }, items: { type: 'array', items: { type: 'object', properties: { serial: { type: 'string' }, headId: { type: 'string' }, value: { type: 'number' }, modifiedZ: num, reasons: { type: 'array', items: ref('Reason') } } } } } }, 'One page of flagged readings.'), '404': problem('No such family.') }
+			})
+		},
+		'/api/v1/stats/rates': {
+			get: operation('rates', {
+				summary: 'Failure or repair rates by side, family and cylinder, intake against exhaust',
+				description: "Per valve position: failures, n, rate and the 95 % Wilson interval; the intake-vs-exhaust difference with Fisher's exact test (two-sided) when an expected count is under 5, else Pearson's chi-square, naming the test used.",
+				role: 'viewer',
+				tag: 'Statistics',
+				query: ratesQuerySchema as unknown as ZodObjectLike,
+				example: 'check=clearance&stage=as_received',
+				responses: {
+					'200': jsonBody(
+						{ type: 'object', properties: { overall: ref('RateCell'), bySide: { type: 'object', properties: { intake: ref('RateCell'), exhaust: ref('RateCell') } }, sideDifference: { type: ['object', 'null'], properties: { test: { enum: ['fisher', 'chi_square'] }, p: num, difference: num } }, families: { type: 'array' }, byCylinder: { type: 'array' } } },
+						'Rates with intervals and the side test.'
+					),
+					'404': problem('No such family.')
+				}
+			})
+		},
+		'/api/v1/stats/comebacks': {
+			get: operation('comebacks', { summary: 'Released heads and how many came back, per family', role: 'viewer', tag: 'Statistics', query: comebacksQuerySchema as unknown as ZodObjectLike, example: 'from=2026-01-01', responses: { '200': jsonBody({ type: 'object', properties: { overall: ref('RateCell'), families: { type: 'array' } } }, 'Comeback rates with Wilson intervals.'), '404': problem('No such family.') } })
+		},
+		'/api/v1/stats/capability': {
+			get: operation('capability', {
+				summary: 'Process capability (Cp, Cpk) of final readings against the final limits',
+				role: 'viewer',
+				tag: 'Statistics',
+				query: capabilityQuerySchema as unknown as ZodObjectLike,
+				example: 'family=ALDER-4&side=intake&measurement=seat_width',
+				responses: { '200': jsonBody({ type: 'object', properties: { n: { type: 'integer' }, cp: num, cpk: num, sdWithin: num, sdOverall: num, verdict: { type: 'object', properties: { level: { type: 'string' }, text: { type: 'string' } } } } }, 'Capability with a verdict in words.'), '404': problem('No such family.'), '422': problem('The limits leave no tolerance.') }
+			})
+		},
+		'/api/v1/stats/control': {
+			get: operation('control', { summary: 'Individuals and moving-range chart in time order', role: 'viewer', tag: 'Statistics', query: controlQuerySchema as unknown as ZodObjectLike, example: 'family=ALDER-4&side=intake&measurement=seat_width&stage=final&limit=200', responses: { '200': jsonBody({ type: 'object', properties: { centre: num, ucl: num, lcl: num, mrBar: num, mrUcl: num, points: { type: 'array' } } }, 'Centre lines, control limits and the points beyond them.'), '404': problem('No such family.') } })
+		},
+		'/api/v1/stats/wear': {
+			get: operation('wear', { summary: 'A measurement against head mileage: least-squares line and 95 % band', role: 'viewer', tag: 'Statistics', query: wearQuerySchema as unknown as ZodObjectLike, example: 'measurement=clearance&side=exhaust&family=ALDER-4', responses: { '200': jsonBody({ type: 'object', properties: { n: { type: 'integer' }, slopePer10000Km: num, intercept: num, r2: num, band: { type: 'array' }, points: { type: 'array' } } }, 'The fit and up to 5,000 points.'), '404': problem('No such family.') } })
+		},
+		'/api/v1/stats/describe': {
+			post: operation('describe', {
+				summary: 'Summary statistics of numbers you send',
+				role: 'viewer',
+				tag: 'Statistics',
+				requestBody: { required: true, content: { 'application/json': { schema: { type: 'array', items: { type: 'number' }, maxItems: DESCRIBE_MAX_VALUES } } } },
+				exampleBody: { type: 'application/json', data: '[0.051, 0.048, 0.062, 0.055]' },
+				responses: { '200': jsonBody({ type: 'object', properties: { ...summaryProps, lag1Autocorrelation: num } }, 'The same summary as a distribution, plus the lag-1 autocorrelation.'), '413': problem(`More than ${DESCRIBE_MAX_VALUES} numbers.`) }
+			})
+		},
+		'/api/v1/families': {
+			get: operation('families', { summary: 'The shop’s engine families, layouts and limits in force', role: 'viewer', tag: 'Shop', example: '', responses: { '200': jsonBody({ type: 'object', properties: { families: { type: 'array', items: ref('Family') } } }, 'Families with their limits.') } })
+		},
+		'/api/v1/overview': {
+			get: operation('overview', { summary: 'The shop’s figures at a glance', role: 'viewer', tag: 'Shop', example: '', responses: { '200': jsonBody({ type: 'object', properties: { headsReceivedThisMonth: { type: 'integer' }, headsReleasedThisMonth: { type: 'integer' }, headsInWork: { type: 'integer' }, readingsStored: { type: 'integer' }, failingAsReceived: { type: 'array' } } }, 'Counts and as-received failure shares.') } })
+		},
+		'/api/v1/imports': {
+			get: operation('listImports', { summary: 'Import batches, newest first', role: 'machinist', tag: 'Imports', query: importListSchema as unknown as ZodObjectLike, example: '', responses: { '200': jsonBody({ type: 'object', properties: { batches: { type: 'array' } } }, 'The batches.') } }),
+			post: operation('importCsv', {
+				summary: 'Import a CSV file of readings (the request body)',
+				role: 'machinist',
+				tag: 'Imports',
+				query: importQuerySchema as unknown as ZodObjectLike,
+				requestBody: { required: true, content: { 'text/csv': { schema: { type: 'string' } } } },
+				example: 'layout=wide&onReject=skip&fileName=bench-week-12.csv',
+				exampleBody: { type: 'text/csv', data: '@readings.csv' },
+				responses: {
+					'201': jsonBody({ type: 'object', properties: { batchId: { type: 'string' }, accepted: { type: 'integer' }, rejected: { type: 'integer' }, readings: { type: 'integer' }, rejects: { type: 'array' } } }, 'Stored: counts and the first rejected rows.'),
+					'200': jsonBody({ type: 'object' }, 'A dry run, or a file already imported (duplicateOf).'),
+					'413': problem('The file is larger than the upload limit.'),
+					'415': problem('Not sent as text/csv.'),
+					'422': problem('Rows were refused and onReject=abort: nothing was stored.')
+				}
+			})
+		},
+		'/api/v1/imports/{id}': {
+			get: operation('getImport', { summary: 'One import batch with its first rejected rows', role: 'machinist', tag: 'Imports', path: [idParam], responses: { '200': jsonBody({ type: 'object' }, 'The batch.'), '404': problem('No such import.') } }),
+			delete: operation('undoImport', { summary: 'Undo an import: its readings, and heads only it created, are removed', role: 'engineer', tag: 'Imports', path: [idParam], responses: { '200': jsonBody({ type: 'object', properties: { status: { const: 'undone' }, readingsRemoved: { type: 'integer' }, headsRemoved: { type: 'integer' } } }, 'Undone.'), '404': problem('No such import.'), '409': problem('Only a committed import can be undone.') } })
+		},
+		'/api/v1/imports/{id}/rejects.csv': {
+			get: operation('importRejects', { summary: 'Every rejected row of an import as CSV', role: 'machinist', tag: 'Imports', path: [idParam], responses: { '200': { description: 'line, reason, row.', content: { 'text/csv': { schema: { type: 'string' } } } }, '404': problem('No such import.') } })
+		},
+		'/api/v1/imports/headers': {
+			post: operation('adviseHeaders', {
+				summary: 'What the import makes of a header row, with suggestions for the rest',
+				role: 'machinist',
+				tag: 'Imports',
+				requestBody: { required: true, content: { 'application/json': { schema: { type: 'object', required: ['headers'], properties: { headers: { type: 'array', items: { type: 'string' }, maxItems: 200 }, layout: { enum: ['wide', 'long'] } } } } } },
+				exampleBody: { type: 'application/json', data: '{"headers": ["serial", "family", "cyl", "side", "clearance (in)"]}' },
+				responses: { '200': jsonBody({ type: 'object' }, 'Recognised columns, suggestions and any remembered mapping.') }
+			})
+		}
+	},
+	components: {
+		securitySchemes: {
+			bearer: { type: 'http', scheme: 'bearer', description: 'An API token, lmk_… (Shop → API tokens).' },
+			session: { type: 'apiKey', in: 'cookie', name: 'authjs.session-token', description: 'The session of a signed-in browser.' }
+		},
+		schemas: {
+			Error: { type: 'object', required: ['message'], properties: { message: { type: 'string' }, id: { type: 'string', description: 'Reference of an unexpected error in the server log.' } } },
+			Family: { type: 'object', properties: { id: { type: 'string', format: 'uuid' }, code: { type: 'string' } } },
+			Reason: { type: 'object', properties: { code: { enum: ['below_limit', 'above_limit', 'tukey_low', 'tukey_high', 'modified_z'] }, text: { type: 'string' } } },
+			RateCell: { type: 'object', properties: { failures: { type: 'integer' }, n: { type: 'integer' }, rate: num, ci95: { type: 'object', properties: { low: num, high: num } } } },
+			Reading: {
+				type: 'object',
+				properties: {
+					id: { type: 'integer' },
+					headId: { type: 'string', format: 'uuid' },
+					headSerial: { type: 'string' },
+					family: { type: 'string' },
+					customer: { type: 'string' },
+					stage: { enum: ['as_received', 'final'] },
+					cylinder: { type: 'integer' },
+					side: { enum: ['intake', 'exhaust'] },
+					valve: { type: 'integer' },
+					measurement: { enum: [...MEASUREMENTS] },
+					value: { type: 'number', description: 'In `unit`, the measurement’s canonical unit.' },
+					unit: { enum: ['mm', 'um', 'pct', 's'] },
+					measuredAt: { type: 'string', format: 'date-time' },
+					measuredBy: { type: 'string' },
+					instrument: { type: ['string', 'null'], description: 'Serial number of the gauge.' },
+					mileageKm: { type: ['integer', 'null'] },
+					batch: { type: ['string', 'null'], description: 'Import batch id, for imported readings.' }
+				}
+			},
+			ReadingsPage: { type: 'object', properties: { filters: filtersEcho, page: { type: 'integer' }, pageSize: { type: 'integer' }, sort: { type: 'string' }, total: { type: 'integer' }, pages: { type: 'integer' }, items: { type: 'array', items: ref('Reading') } } }
+		}
+	}
+} as const;
+
+/** A route id of src/routes (/api/v1/imports/[id]) as an OpenAPI path (/api/v1/imports/{id}). */
+export function openApiPath(routeId: string): string {
+	return routeId.replace(/\[(\w+)\]/g, '{$1}');
+}
