@@ -199,7 +199,7 @@ async function signInWithPasswordNoJs(page: Page) {
 
 describe('look and accessibility', () => {
 	// One context per theme, one test per page (each with its own time limit).
-	const A11Y_PAGES = [...ANALYSIS_PAGES, '/check?family=ALDER-4&side=exhaust&stage=as_received&measurement=clearance&value=0.2&unit=mm', '/heads', '/imports', '/families', '/instruments', '/audit', '/settings/tokens', '/settings/members'];
+	const A11Y_PAGES = [...ANALYSIS_PAGES, '/check?family=ALDER-4&side=exhaust&stage=as_received&measurement=clearance&value=0.2&unit=mm', '/heads', '/imports', '/families', '/instruments', '/audit', '/settings/tokens', '/settings/members', '/heads/new'];
 	for (const dark of [false, true]) {
 		describe(dark ? 'dark theme' : 'light theme', () => {
 			let context: BrowserContext;
@@ -209,6 +209,31 @@ describe('look and accessibility', () => {
 			});
 			afterAll(async () => {
 				await context?.close();
+			});
+			it('has no serious or critical axe-core violation on the sign-in pages', async () => {
+				const anon = await browser.newContext({ colorScheme: dark ? 'dark' : 'light' });
+				try {
+					const p = await anon.newPage();
+					const found: string[] = [];
+					for (const path of ['/signin', '/signin/forgot']) {
+						expect((await p.goto(`${baseURL}${path}`))?.status()).toBe(200);
+						for (const v of await axeSerious(p)) found.push(`${path}: ${v.impact} ${v.id} (${v.help}) at ${v.nodes.map((n) => n.target.join(' ')).join(', ')}`);
+					}
+					expect(found).toEqual([]);
+				} finally {
+					await anon.close();
+				}
+			});
+			it('has no serious or critical axe-core violation on a head and its pages', async () => {
+				await open(page, '/heads');
+				const href = await page.locator('[data-testid="head-row"] a').first().getAttribute('href');
+				expect(href).toMatch(/^\/heads\/[0-9a-f-]{36}$/);
+				const found: string[] = [];
+				for (const path of [href!, `${href}/entry/as-received`, `${href}/entry/final`, `${href}/decisions`, `${href}/report`]) {
+					await open(page, path);
+					for (const v of await axeSerious(page)) found.push(`${path}: ${v.impact} ${v.id} (${v.help}) at ${v.nodes.map((n) => n.target.join(' ')).join(', ')}`);
+				}
+				expect(found).toEqual([]);
 			});
 			for (const path of A11Y_PAGES) {
 				it(`has no serious or critical axe-core violation on ${path}`, async () => {
