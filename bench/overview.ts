@@ -2,7 +2,8 @@
 //
 // Run through scripts/bench.sh, which hands over a fresh scratch database (BENCH_DATABASE_URL)
 // and a build of the app. Steps:
-//   1. migrate and seed the same demo `npm start` seeds (VACUUM ANALYZE included);
+//   1. migrate and seed the same demo `npm start` seeds (VACUUM ANALYZE included), unless the
+//      database already holds it (KEEP_BENCH_DB=1 on an earlier run);
 //   2. start `node build` on BENCH_PORT (default 3320) and sign in as the demo owner in Debian's
 //      chromium (playwright-core);
 //   3. BENCH_RUNS times (default 7), in a fresh browser context each (nothing cached), open `/`
@@ -11,6 +12,7 @@
 // Prints each run and the median, then one line of JSON.
 import { spawn } from 'node:child_process';
 import { randomBytes } from 'node:crypto';
+import { loadavg } from 'node:os';
 import postgres from 'postgres';
 import { chromium } from 'playwright-core';
 import { runMigrations } from '../scripts/migrate';
@@ -34,9 +36,18 @@ const median = (xs: number[]) => {
 await runMigrations(url);
 const sql = postgres(url, { max: 1, onnotice: () => {} });
 const t0 = performance.now();
-const seeded = await seedDemo(sql, { endDate: new Date().toISOString().slice(0, 10), analyze: true });
+// A database kept from an earlier run (KEEP_BENCH_DB=1) is used as it is.
+const [{ n: shopsThere }] = await sql<{ n: number }[]>`select count(*)::int as n from shops`;
+let readingsTotal: number;
+if (shopsThere > 0) {
+	[{ n: readingsTotal }] = await sql<{ n: number }[]>`select coalesce(sum(n), 0)::int as n from reading_summaries`;
+	log(`reusing the demo already in the database (${readingsTotal} readings)`);
+} else {
+	const seeded = await seedDemo(sql, { endDate: new Date().toISOString().slice(0, 10), analyze: true });
+	readingsTotal = seeded.counts.readings;
+	log(`demo seeded: ${seeded.counts.heads} heads, ${seeded.counts.readings} readings in ${((performance.now() - t0) / 1000).toFixed(1)} s`);
+}
 await sql.end();
-log(`demo seeded: ${seeded.counts.heads} heads, ${seeded.counts.readings} readings in ${((performance.now() - t0) / 1000).toFixed(1)} s`);
 
 const server = spawn('node', ['build'], {
 	env: { ...process.env, DATABASE_URL: url, PORT: String(port), HOST: '127.0.0.1', ORIGIN: base, AUTH_SECRET: process.env.AUTH_SECRET ?? randomBytes(24).toString('hex') },
@@ -52,7 +63,7 @@ const browser = await chromium.launch({
 	executablePath: process.env.CHROMIUM_PATH ?? '/usr/bin/chromium',
 	args: ['--headless', '--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync']
 });
-type Run = { ms: number; jsBytes: number; jsFiles: number; apiRequests: number };
+type Run = { ms: number; jsBytes: number; jsFiles: number; apiRequests: number; slowestApiMs: number };
 const results: Run[] = [];
 try {
 	// Sign in once; each run gets the session cookie in a new context with an empty cache.
@@ -72,9 +83,14 @@ try {
 		const page = await context.newPage();
 		const js: Promise<number>[] = [];
 		let apiRequests = 0;
+		let slowestApiMs = 0;
 		page.on('requestfinished', (req) => {
 			const u = new URL(req.url());
-			if (u.pathname.startsWith('/api/')) apiRequests++;
+			if (u.pathname.startsWith('/api/')) {
+				apiRequests++;
+				const t = req.timing();
+				slowestApiMs = Math.max(slowestApiMs, Math.round(t.responseEnd - t.requestStart));
+			}
 			if (u.pathname.endsWith('.js')) js.push(req.sizes().then((s) => s.responseBodySize + s.responseHeadersSize));
 		});
 		const start = performance.now();
@@ -86,9 +102,9 @@ try {
 		);
 		const ms = performance.now() - start;
 		const sizes = await Promise.all(js);
-		const run = { ms: Math.round(ms), jsBytes: sizes.reduce((a, b) => a + b, 0), jsFiles: sizes.length, apiRequests };
+		const run = { ms: Math.round(ms), jsBytes: sizes.reduce((a, b) => a + b, 0), jsFiles: sizes.length, apiRequests, slowestApiMs };
 		// The first run warms the server (connections, query plans); it is printed, not counted.
-		log(`${i === 0 ? 'warm-up' : `run ${i}`}: all charts in ${run.ms} ms, ${run.jsFiles} JS files, ${(run.jsBytes / 1024).toFixed(0)} KiB of JS, ${apiRequests} API requests`);
+		log(`${i === 0 ? 'warm-up' : `run ${i}`}: all charts in ${run.ms} ms, ${run.jsFiles} JS files, ${(run.jsBytes / 1024).toFixed(0)} KiB of JS, ${apiRequests} API requests (slowest ${slowestApiMs} ms)`);
 		if (i > 0) results.push(run);
 		await context.close();
 	}
@@ -97,14 +113,16 @@ try {
 	server.kill('SIGTERM');
 }
 const out = {
-	readings: seeded.counts.readings,
+	readings: readingsTotal,
 	runs,
 	medianMs: median(results.map((r) => r.ms)),
 	maxMs: Math.max(...results.map((r) => r.ms)),
 	jsKiB: Math.round(median(results.map((r) => r.jsBytes)) / 1024),
 	jsFiles: median(results.map((r) => r.jsFiles)),
-	apiRequests: median(results.map((r) => r.apiRequests))
+	apiRequests: median(results.map((r) => r.apiRequests)),
+	slowestApiMs: median(results.map((r) => r.slowestApiMs)),
+	loadAverage: loadavg()[0]
 };
-console.log(`overview first load: median ${out.medianMs} ms (max ${out.maxMs} ms) over ${runs} runs, ${out.jsKiB} KiB of JS in ${out.jsFiles} files, ${out.apiRequests} API requests`);
+console.log(`overview first load: median ${out.medianMs} ms (max ${out.maxMs} ms) over ${runs} runs, ${out.jsKiB} KiB of JS in ${out.jsFiles} files, ${out.apiRequests} API requests (slowest ${out.slowestApiMs} ms); load average ${out.loadAverage.toFixed(1)}`);
 console.log(JSON.stringify(out));
 process.exit(0);
