@@ -159,11 +159,25 @@ describe('POST /api/v1/imports', () => {
 					if (sent === 0) c.enqueue(new TextEncoder().encode(`${HEADER}\n`));
 					c.enqueue(new TextEncoder().encode(Array.from({ length: 500 }, (_, i) => row(`KILL-${sent}`, i)).join('\n') + '\n'));
 					sent++;
-					if (sent === 15) child.kill('SIGKILL');
 					await new Promise((r) => setTimeout(r, 30));
 				}
 			});
+			// Kill the server once its import is under way (its batch is recorded and rows are being
+			// read), however slow the machine is to get there; not after a fixed number of chunks.
+			const killer = (async () => {
+				for (let i = 0; i < 300; i++) {
+					const [b] = await sql.begin(async (t) => {
+						await t`select set_config('lapmark.shop_id', ${shopId}, true)`;
+						return t`select 1 from import_batches where shop_id = ${shopId} and file_name = 'killed.csv'`;
+					});
+					if (b) break;
+					await new Promise((r) => setTimeout(r, 100));
+				}
+				await new Promise((r) => setTimeout(r, 500));
+				child.kill('SIGKILL');
+			})();
 			const res = await post('/api/v1/imports?fileName=killed.csv', stream, 'machinist', {}, base).catch((e) => e);
+			await killer;
 			expect(res).toBeInstanceOf(Error);
 			await exited;
 			// PostgreSQL ends the dead server's session and rolls its transaction back.
