@@ -112,6 +112,16 @@ describe('series keys', () => {
 		for (const r of rows) expect(r.key, `${r.m} ${r.st} ${r.sd}`).toBe(seriesKey(r.m as never, r.st as never, r.sd as never));
 		expect(new Set(rows.map((r) => r.key)).size).toBe(rows.length);
 	});
+
+	it('lapmark_series() is inlined into the expression that computes series_key, not called per row', async () => {
+		// A SQL function declared STRICT whose body is not strict (CASE) is executed as a query of
+		// its own for every row written (drizzle/0005); inlined, the plan shows the CASE itself.
+		const plan = await db.execute<{ 'QUERY PLAN': string }>(raw`
+			explain (verbose, costs off) select lapmark_series(m, 'final', 'intake') from unnest(enum_range(null::measurement)) m`);
+		const text = plan.map((r) => r['QUERY PLAN']).join('\n');
+		expect(text).toMatch(/CASE m/);
+		expect(text).not.toMatch(/lapmark_series/);
+	});
 });
 
 describe('summaries stay equal to a full recomputation', () => {
