@@ -13,6 +13,7 @@ PG_BIN=/usr/lib/postgresql/$PG_VERSION/bin
 LAPMARK_ROOT=$(cd "$(dirname "${BASH_SOURCE[0]}")/.." && pwd)
 PG_PORT=${LAPMARK_PG_PORT:-54329}
 PG_APP_ROLE=lapmark
+PG_IMPORT_ROLE=lapmark_import
 
 pg_log() { printf '[db] %s\n' "$*" >&2; }
 
@@ -130,11 +131,17 @@ pg_admin_sql() {
 		-U lapmark_admin -d postgres "$@"
 }
 
-# Make sure the app's role and the named database exist. Prints nothing.
+# Make sure the app's role, the import's role and the named database exist. Prints nothing.
+# lapmark_import (no login) bypasses row-level security so that the bulk import may COPY straight
+# into readings; the app's role may switch to it (SET ROLE) and it may only insert readings (granted
+# by drizzle/0005). Only a superuser can create a role that bypasses row-level security.
 pg_ensure_database() {
 	local db=$1 root pw; root=$(pg_data_root); pw=$(cat "$root/password")
 	pg_admin_sql -tA -c "select 1 from pg_roles where rolname = '$PG_APP_ROLE'" | grep -q 1 ||
 		pg_admin_sql -c "create role $PG_APP_ROLE login password '$pw' nosuperuser nocreatedb nocreaterole"
+	pg_admin_sql -tA -c "select 1 from pg_roles where rolname = '$PG_IMPORT_ROLE'" | grep -q 1 ||
+		pg_admin_sql -c "create role $PG_IMPORT_ROLE nologin bypassrls nosuperuser nocreatedb nocreaterole" \
+			-c "grant $PG_IMPORT_ROLE to $PG_APP_ROLE"
 	pg_admin_sql -tA -c "select 1 from pg_database where datname = '$db'" | grep -q 1 ||
 		pg_admin_sql -c "create database $db owner $PG_APP_ROLE"
 }

@@ -154,29 +154,30 @@ describe('POST /api/v1/imports', () => {
 				await new Promise((r) => setTimeout(r, 200));
 			}
 			let sent = 0;
-			let killed = false;
-			const batchStatus = async () => {
-				const [b] = await sql.begin(async (t) => {
-					await t`select set_config('lapmark.shop_id', ${shopId}, true)`;
-					return t<{ status: string }[]>`select status from import_batches where shop_id = ${shopId} and file_name = 'killed.csv'`;
-				});
-				return b?.status ?? null;
-			};
 			const stream = new ReadableStream<Uint8Array>({
 				async pull(c) {
 					if (sent === 0) c.enqueue(new TextEncoder().encode(`${HEADER}\n`));
 					c.enqueue(new TextEncoder().encode(Array.from({ length: 500 }, (_, i) => row(`KILL-${sent}`, i)).join('\n') + '\n'));
 					sent++;
-					// Kill once the import is under way: its batch row committed and rows flowing.
-					if (sent >= 15 && !killed && (await batchStatus()) === 'running') {
-						killed = true;
-						child.kill('SIGKILL');
-					}
-					if (sent > 3000) c.close(); // the import never showed up: let the test fail plainly
 					await new Promise((r) => setTimeout(r, 30));
 				}
 			});
+			// Kill the server once its import is under way (its batch is recorded and rows are being
+			// read), however slow the machine is to get there; not after a fixed number of chunks.
+			const killer = (async () => {
+				for (let i = 0; i < 300; i++) {
+					const [b] = await sql.begin(async (t) => {
+						await t`select set_config('lapmark.shop_id', ${shopId}, true)`;
+						return t`select 1 from import_batches where shop_id = ${shopId} and file_name = 'killed.csv'`;
+					});
+					if (b) break;
+					await new Promise((r) => setTimeout(r, 100));
+				}
+				await new Promise((r) => setTimeout(r, 500));
+				child.kill('SIGKILL');
+			})();
 			const res = await post('/api/v1/imports?fileName=killed.csv', stream, 'machinist', {}, base).catch((e) => e);
+			await killer;
 			expect(res).toBeInstanceOf(Error);
 			await exited;
 			// PostgreSQL ends the dead server's session and rolls its transaction back.

@@ -6,7 +6,7 @@ import fc from 'fast-check';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { withShop } from '../../src/lib/server/db/scope';
 import { families, instruments } from '../../src/lib/server/db/schema';
-import { reapDeadImports, runImport, type ImportOptions } from '../../src/lib/server/import/run';
+import { directAvailable, reapDeadImports, runImport, type ImportOptions } from '../../src/lib/server/import/run';
 import { ImportInputError } from '../../src/lib/server/import/text';
 import { undoBatch } from '../../src/lib/server/queries/imports';
 import { makeShop, testDb } from '../helpers/db';
@@ -325,3 +325,109 @@ describe('any valid file imports completely (property)', () => {
 		);
 	});
 });
+
+describe('two ways into readings: straight in (COPY as the import role) and staged', () => {
+	// Readings of heads a file creates go by COPY straight into readings while the file is read;
+	// rows that need a check across rows (a stored head, a key seen before) and rejected rows go
+	// through the staging table. The staged way alone is what a server without the import role
+	// gets. Both must give the same answer and store the same readings.
+	const head = 'head_serial,family,stage,cylinder,side,valve,measured_at,measured_by,clearance_mm,seat_width_mm';
+	const file = [
+		head,
+		'N-1,OAK-4,as_received,1,intake,1,2026-05-04T08:00:00Z,Ivy,0.051,1.2', // 2: new head, straight in
+		'N-1,OAK-4,as_received,1,intake,2,2026-05-04T08:00:00Z,Ivy,0.052,1.3', // 3
+		'N-2,OAK-4,as_received,2,intake,1,2026-05-04T09:00:00Z,Ivy,0.053,', // 4
+		'N-1,OAK-4,as_received,1,intake,1,2026-05-04T08:00:00Z,Ivy,0.051,', // 5: same reading as line 2
+		'N-2,ASH-6,as_received,3,intake,1,2026-05-04T09:00:00Z,Ivy,0.054,', // 6: N-2 is an OAK-4 head (line 4)
+		'N-3,OAK-4,final,1,exhaust,1,2026-05-05T08:00:00Z,Ivy,1.7,', // 7: impossible clearance
+		'K-9,OAK-4,final,1,intake,1,2026-05-06T08:00:00Z,Ivy,0.030,', // 8: stored head, new reading
+		'K-9,OAK-4,as_received,1,intake,1,2026-05-01T08:00:00Z,Ivy,0.060,', // 9: stored already (a duplicate, not a reject)
+		'K-9,OAK-4,final,1,intake,1,2026-05-06T08:00:00Z,Ivy,0.031,', // 10: same reading as line 8
+		'N-1,OAK-4,as_received,2,intake,1,2026-05-04T08:00:00Z,Ivy,0.055,1.3', // 11
+		'N-1,OAK-4,as_received,1,intake,2,2026-05-04T08:00:00Z,Ivy,,1.4', // 12: seat width as line 3 → whole row out
+		'N-4,OAK-4,final,4,exhaust,1,2026-05-07T08:00:00Z,Ivy,0.061,1.9' // 13
+	].join('\n');
+
+	async function run(direct: boolean) {
+		const { shop } = await makeShop(db, direct ? 'way-direct' : 'way-staged');
+		const o = (over: Partial<ImportOptions> = {}) => opts({ shopId: shop.id, direct, ...over });
+		await withShop(db, shop.id, (tx) =>
+			tx.insert(families).values([
+				{ shopId: shop.id, code: 'OAK-4', cylinders: 4, intakeValves: 2, exhaustValves: 1 },
+				{ shopId: shop.id, code: 'ASH-6', cylinders: 6, intakeValves: 1, exhaustValves: 1 }
+			])
+		);
+		const first = await runImport(sql, body(`${head}\nK-9,OAK-4,as_received,1,intake,1,2026-05-01T08:00:00Z,Ivy,0.060,`), o({ fileName: 'first.csv' }));
+		expect(first.status).toBe(201);
+		const out = await runImport(sql, body(file, 64), o());
+		const stored = await sql.begin(async (t) => {
+			await t`select set_config('lapmark.shop_id', ${shop.id}, true)`;
+			return t`
+				select h.serial, f.code, r.stage, r.cylinder, r.side, r.valve, r.measurement, r.value, r.measured_at
+				from readings r join heads h on h.id = r.head_id join families f on f.id = r.family_id
+				order by 1, 3, 4, 5, 6, 7, 9`;
+		});
+		return { shop, out, stored };
+	}
+
+	it('give the same counts, reasons and stored readings', async () => {
+		const direct = await run(true);
+		const staged = await run(false);
+		expect(staged.out.result.path).toBe('staged');
+		if (await importRoleThere()) expect(direct.out.result.path).toBe('direct');
+		for (const way of [direct, staged]) {
+			expect(way.out.status).toBe(201);
+			expect(way.out.result).toMatchObject({ accepted: 7, rejected: 5, readings: 10, duplicates: 1, createdHeads: 3 });
+			expect(way.out.result.rejects.map((r) => [r.line, r.reason])).toEqual([
+				[5, 'the same reading as line 2 (duplicate key in the file)'],
+				[6, 'head N-2 is a OAK-4 head, not ASH-6'],
+				[7, 'clearance_mm: 1.7 mm is not physically possible for stem-to-guide clearance (at most 1 mm)'],
+				[10, 'the same reading as line 8 (duplicate key in the file)'],
+				[12, 'the same reading as line 3 (duplicate key in the file)']
+			]);
+			// 1 stored before + lines 2 (2 readings), 3 (2), 4 (1), 8 (1), 11 (2), 13 (2).
+			expect(way.stored).toHaveLength(11);
+		}
+		expect(direct.stored).toEqual(staged.stored);
+	});
+
+	it('takes the staged way on a server where the import role may not insert readings', async () => {
+		// Revoked inside a transaction that is rolled back: no other session sees it.
+		const there = await importRoleThere();
+		const ways = await sql
+			.begin(async (t) => {
+				const before = await directAvailable(t);
+				if (there) await t`revoke insert on readings from lapmark_import`;
+				throw Object.assign(new Error('roll back'), { ways: [before, await directAvailable(t)] });
+			})
+			.catch((e) => e.ways);
+		expect(ways).toEqual([there, false]);
+	});
+
+	it('when rejected rows abort, a reject found only at the end leaves nothing of the file', async () => {
+		const readings = await count('readings');
+		const heads = await count('heads');
+		const [sums] = await sql.begin(async (t) => {
+			await t`select set_config('lapmark.shop_id', ${shopId}, true)`;
+			return t`select count(*)::int as n, coalesce(sum(n), 0)::int as total from reading_value_counts`;
+		});
+		const rows = Array.from({ length: 300 }, (_, i) => `LATE-${i >> 3},OAK-4,final,${(i % 4) + 1},intake,${((i >> 2) % 2) + 1},2026-06-0${1 + ((i >> 3) % 9)}T08:00:00Z,Jo,0.0${10 + (i % 80)},,`);
+		rows.push(rows[17]); // line 302 repeats line 19: known only once the whole file is read
+		const out = await runImport(sql, body(`${WIDE_HEAD}\n${rows.join('\n')}\n`, 512), opts({ onReject: 'abort', fileName: 'late.csv' }));
+		expect(out.status).toBe(422);
+		expect(out.result).toMatchObject({ accepted: 300, rejected: 1, readings: 0, createdHeads: 0 });
+		expect(out.result.rejects).toEqual([{ line: 302, reason: 'the same reading as line 19 (duplicate key in the file)', raw: expect.any(String) }]);
+		expect(await count('readings')).toBe(readings);
+		expect(await count('heads')).toBe(heads);
+		const [after] = await sql.begin(async (t) => {
+			await t`select set_config('lapmark.shop_id', ${shopId}, true)`;
+			return t`select count(*)::int as n, coalesce(sum(n), 0)::int as total from reading_value_counts`;
+		});
+		expect(after).toEqual(sums);
+	});
+});
+
+async function importRoleThere() {
+	const [r] = await sql`select exists (select 1 from pg_roles where rolname = 'lapmark_import') as there`;
+	return r.there as boolean;
+}

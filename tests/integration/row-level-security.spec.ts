@@ -4,7 +4,8 @@ import { sql as raw } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { newApiToken, sha256Hex } from '../../src/lib/server/auth/tokens';
 import { withShop, withSystem } from '../../src/lib/server/db/scope';
-import { apiTokens, heads, memberships, readings, users } from '../../src/lib/server/db/schema';
+import { apiTokens, heads, importBatches, memberships, readings, users } from '../../src/lib/server/db/schema';
+import { CopyChannel, IMPORT_ROLE } from '../../src/lib/server/import/run';
 import { liveToken } from '../../src/lib/server/queries/memberships';
 import { makeShop, pgError, testDb } from '../helpers/db';
 import { uniqueEmail } from '../helpers/people';
@@ -12,6 +13,7 @@ import { uniqueEmail } from '../helpers/people';
 const { db, sql } = testDb();
 let a: Awaited<ReturnType<typeof makeShop>>;
 let b: Awaited<ReturnType<typeof makeShop>>;
+let headA: string;
 let headB: string;
 
 beforeAll(async () => {
@@ -21,6 +23,7 @@ beforeAll(async () => {
 		await withShop(db, s.shop.id, async (tx) => {
 			const [h] = await tx.insert(heads).values({ shopId: s.shop.id, familyId: s.family.id, serial: 'RLS-1', receivedOn: '2026-05-01' }).returning();
 			await tx.insert(readings).values({ shopId: s.shop.id, headId: h.id, familyId: s.family.id, stage: 'as_received', cylinder: 1, side: 'intake', valve: 1, measurement: 'clearance', value: 0.05, measuredAt: new Date('2026-05-02T08:00:00Z'), measuredBy: 'RLS' });
+			if (s === a) headA = h.id;
 			if (s === b) headB = h.id;
 		});
 	}
@@ -78,5 +81,66 @@ describe('row-level security', () => {
 		expect(await liveToken(db, sha256Hex(token))).toMatchObject({ shopId: b.shop.id });
 		const [none] = await db.execute<{ n: number }>(raw`select count(*)::int as n from api_tokens`);
 		expect(none.n).toBe(0);
+	});
+});
+
+// The bulk import COPYs new readings straight into readings as lapmark_import, a role that
+// bypasses row-level security (PostgreSQL refuses COPY FROM into a table under it). What keeps
+// those rows in the importing shop is checked here: the role may do nothing but insert readings,
+// a row naming another shop fails the (shop_id, batch_id) foreign key or the summary trigger's
+// row-level security, and the shop id is the import's own (never the file's).
+const [{ there: importRole }] = await sql`select exists (select 1 from pg_roles where rolname = ${IMPORT_ROLE}) as there`;
+
+describe.skipIf(!importRole)('the import role', () => {
+	/** COPYs one reading as the import role in a transaction scoped to shop A; returns the error. */
+	async function copyAsImport(row: { shop: string; head: string; family: string; batch: string | null }) {
+		return pgError(() =>
+			sql.begin(async (t) => {
+				await t`select set_config('lapmark.shop_id', ${a.shop.id}, true)`;
+				const channel = new CopyChannel(t);
+				await channel.write('readings', `${row.shop}\t${row.head}\t${row.family}\tfinal\t1\tintake\t1\tclearance\t0.04\t2026-05-03T08:00:00Z\tRLS\t\\N\t${row.batch ?? '\\N'}\n`);
+				await channel.end();
+			})
+		);
+	}
+
+	it('may insert readings only: it reads, changes and deletes nothing', async () => {
+		for (const statement of ['select count(*) from readings', 'select count(*) from heads', `update readings set value = 0 where head_id = '${headB}'`, 'delete from readings']) {
+			const err = await pgError(() =>
+				sql.begin(async (t) => {
+					await t.unsafe(`set local role ${IMPORT_ROLE}`);
+					await t.unsafe(statement);
+				})
+			);
+			expect(err.code, statement).toBe('42501');
+		}
+	});
+
+	it('writes a row of the transaction’s shop, and refuses one of another shop', async () => {
+		const [batchA] = await withShop(db, a.shop.id, (tx) =>
+			tx.insert(importBatches).values({ shopId: a.shop.id, fileName: 'rls.csv', contentHash: 'rls', layout: 'wide', onReject: 'abort', status: 'running' }).returning()
+		);
+		// The control: shop A's own head and batch go in.
+		await sql.begin(async (t) => {
+			await t`select set_config('lapmark.shop_id', ${a.shop.id}, true)`;
+			const channel = new CopyChannel(t);
+			await channel.write('readings', `${a.shop.id}\t${headA}\t${a.family.id}\tfinal\t1\tintake\t1\tclearance\t0.04\t2026-05-03T08:00:00Z\tRLS\t\\N\t${batchA.id}\n`);
+			await channel.end();
+		});
+		// Shop B's head under A's batch: the batch belongs to A, so (shop_id, batch_id) has no match.
+		const viaBatch = await copyAsImport({ shop: b.shop.id, head: headB, family: b.family.id, batch: batchA.id });
+		expect(viaBatch.code).toBe('23503');
+		expect(viaBatch.constraint).toBe('readings_batch_fk');
+		// Shop A's id on shop B's head: no such (shop, head, family).
+		const viaHead = await copyAsImport({ shop: a.shop.id, head: headB, family: b.family.id, batch: batchA.id });
+		expect(viaHead.code).toBe('23503');
+		// Shop B's row without a batch: the summary trigger writes under shop A's row-level security.
+		const viaSummary = await copyAsImport({ shop: b.shop.id, head: headB, family: b.family.id, batch: null });
+		expect(viaSummary.code).toBe('42501');
+		expect(viaSummary.message).toMatch(/row-level security/);
+		const inB = await withShop(db, b.shop.id, (tx) => tx.execute<{ n: number }>(raw`select count(*)::int as n from readings`));
+		expect(inB[0].n).toBe(1);
+		const inA = await withShop(db, a.shop.id, (tx) => tx.execute<{ n: number }>(raw`select count(*)::int as n from readings where stage = 'final'`));
+		expect(inA[0].n).toBe(1);
 	});
 });

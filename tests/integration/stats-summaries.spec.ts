@@ -10,6 +10,7 @@ import { MEASUREMENTS, SIDES, STAGES } from '../../src/lib/measurements';
 import { withShop } from '../../src/lib/server/db/scope';
 import { heads, readings } from '../../src/lib/server/db/schema';
 import { seriesKey, seriesKeys } from '../../src/lib/server/db/series';
+import { runImport } from '../../src/lib/server/import/run';
 import { undoBatch } from '../../src/lib/server/queries/imports';
 import { groupData, type Selection } from '../../src/lib/server/queries/stats';
 import { makeShop, raw, testDb } from '../helpers/db';
@@ -110,6 +111,16 @@ describe('series keys', () => {
 		expect(rows.length).toBe(MEASUREMENTS.length * 4);
 		for (const r of rows) expect(r.key, `${r.m} ${r.st} ${r.sd}`).toBe(seriesKey(r.m as never, r.st as never, r.sd as never));
 		expect(new Set(rows.map((r) => r.key)).size).toBe(rows.length);
+	});
+
+	it('lapmark_series() is inlined into the expression that computes series_key, not called per row', async () => {
+		// A SQL function declared STRICT whose body is not strict (CASE) is executed as a query of
+		// its own for every row written (drizzle/0005); inlined, the plan shows the CASE itself.
+		const plan = await db.execute<{ 'QUERY PLAN': string }>(raw`
+			explain (verbose, costs off) select lapmark_series(m, 'final', 'intake') from unnest(enum_range(null::measurement)) m`);
+		const text = plan.map((r) => r['QUERY PLAN']).join('\n');
+		expect(text).toMatch(/CASE m/);
+		expect(text).not.toMatch(/lapmark_series/);
 	});
 });
 
@@ -265,6 +276,51 @@ describe('summaries stay equal to a full recomputation', () => {
 		expect(m.n).toBe(1001);
 		expect(Math.abs(m.mean - 3599.2) / 3599.2).toBeLessThan(1e-15);
 		expect(Math.abs(Math.sqrt(m.m2 / (m.n - 1)) - 0.1) / 0.1).toBeLessThan(1e-9);
+	});
+
+	it('after imports through runImport, each way into readings (straight in and staged), and their undo', async () => {
+		// The import COPYs the readings of new heads straight into readings (as lapmark_import) in
+		// one or more statements and inserts the rest from its staging table; the triggers keep the
+		// summaries either way. The second file adds to group-months the first one made.
+		const header = 'head_serial,family,stage,cylinder,side,valve,measured_at,measured_by,clearance_mm,seat_runout_mm,vacuum_hold_pct';
+		const file = (prefix: string, seed: number) => {
+			let x = seed;
+			const next = () => (x = (x * 1103515245 + 12345) % 2147483648) / 2147483648;
+			const lines = [header];
+			for (let h = 1; h <= 6; h++) {
+				for (let c = 1; c <= 4; c++) {
+					for (const side of SIDES) {
+						for (let v = 1; v <= 2; v++) {
+							const at = ['2026-01-31T23:59:59Z', '2026-02-01T00:00:00Z', '2026-02-17T07:30:00Z'][h % 3];
+							lines.push(`${prefix}-${h},TEST-4,${h % 2 ? 'final' : 'as_received'},${c},${side},${v},${at},Ada Test,${(Math.round(next() * 120) / 1000).toFixed(3)},0.0${Math.floor(next() * 9)},${90 + Math.round(next() * 20) / 2}`);
+						}
+					}
+				}
+			}
+			return lines.join('\n') + '\n';
+		};
+		const [{ role }] = await sql`select exists (select 1 from pg_roles where rolname = 'lapmark_import') as role`;
+		const batches: string[] = [];
+		for (const [prefix, direct] of [['RUN-A', true], ['RUN-B', false], ['RUN-C', true]] as const) {
+			const out = await runImport(sql, Readable.from([Buffer.from(file(prefix, prefix.length * 7 + (direct ? 1 : 2)))]), {
+				shopId,
+				actor: { userId: null, label: 'summaries test' },
+				fileName: `${prefix}.csv`,
+				dryRun: false,
+				onReject: 'abort',
+				limitBytes: 1 << 24,
+				now: new Date('2026-12-01T00:00:00Z'),
+				direct
+			});
+			expect(out.status).toBe(201);
+			expect(out.result.path).toBe(direct && role ? 'direct' : 'staged');
+			expect(out.result.readings).toBe(6 * 16 * 3);
+			batches.push(out.result.batchId!);
+			await expectConsistent();
+		}
+		const undone = await withShop(db, shopId, (tx) => undoBatch(tx, shopId, batches[0]));
+		expect(undone).toMatchObject({ ok: true, readingsRemoved: 6 * 16 * 3, headsRemoved: 6 });
+		await expectConsistent();
 	});
 
 	it('after deleting every reading of the shop, nothing is left', async () => {

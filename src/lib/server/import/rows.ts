@@ -82,6 +82,21 @@ export function parseTimestamp(text: string): number | null {
 
 const EARLIEST = Date.UTC(1950, 0, 1);
 
+// The rows of one head usually share their time: the last text read is remembered with what it
+// reads as (a pure function of the text, so any number of imports may share it).
+let lastAtText: string | null = null;
+let lastAt: number | null = null;
+let lastIso = '';
+
+function readTimestamp(text: string) {
+	if (text !== lastAtText) {
+		lastAtText = text;
+		lastAt = parseTimestamp(text);
+		lastIso = lastAt === null ? '' : new Date(lastAt).toISOString();
+	}
+	return { at: lastAt, iso: lastIso };
+}
+
 function checkValue(measurement: Measurement, raw: number, unit: Unit, column: string): { value: number } | { reason: string } {
 	const info = MEASUREMENT_INFO[measurement];
 	if (raw < 0) return { reason: `${column}: negative value ${raw}` };
@@ -132,7 +147,7 @@ export function checkRow(cells: string[], plan: HeaderPlan, ctx: RowContext): Ro
 	}
 
 	const atText = cell(f.measured_at);
-	const at = parseTimestamp(atText);
+	const { at, iso } = readTimestamp(atText);
 	if (at === null) reasons.push(`measured_at "${atText}" is not a date (use 2026-03-14 or 2026-03-14T09:30:00Z)`);
 	else if (at > ctx.latest) reasons.push(`measured_at ${atText} is in the future`);
 	else if (at < EARLIEST) reasons.push(`measured_at ${atText} is before 1950`);
@@ -199,7 +214,7 @@ export function checkRow(cells: string[], plan: HeaderPlan, ctx: RowContext): Ro
 			cylinder: cylinder!,
 			side: side!,
 			valve: valve!,
-			measuredAt: new Date(at!).toISOString(),
+			measuredAt: iso,
 			measuredBy,
 			instrumentId,
 			mileageKm,

@@ -1,11 +1,18 @@
-// The bulk import: stream → parse (papaparse) → check each row → COPY into a staging table →
-// set-based checks and one INSERT … SELECT into readings, all in one transaction. A batch is
-// committed whole or not at all; a crash, a kill or a database restart leaves nothing of it.
-import { randomUUID } from 'node:crypto';
+// The bulk import: stream → parse (papaparse) → check each row → COPY → set-based checks →
+// inserts, all in one transaction. A batch is committed whole or not at all; a crash, a kill or a
+// database restart leaves nothing of it.
+//
+// Two ways into readings. Direct: the readings of heads the file creates go by COPY straight into
+// readings, as the role lapmark_import (drizzle/0005), while the file is still being parsed; only
+// rows that need a check across rows (rows of heads already stored, possible duplicates within the
+// file) and rejected rows go through the staging table. Staged: every row goes into the staging
+// table and one INSERT … SELECT moves the good ones, when that role is missing (an outside server
+// set up without it) or for a dry run.
 import { once } from 'node:events';
-import { Readable } from 'node:stream';
+import { Readable, type Writable } from 'node:stream';
 import Papa from 'papaparse';
 import type postgres from 'postgres';
+import { v7 as uuidv7 } from 'uuid';
 import { planHeader, headerSignature, type HeaderPlan, type Layout } from './header';
 import { checkRow, type FamilyLayout, type GoodRow, type RowContext } from './rows';
 import { ImportInputError, textChunks } from './text';
@@ -23,8 +30,9 @@ export interface ImportOptions {
 	mapping?: Record<string, string>;
 	clientRef?: string;
 	limitBytes: number;
-	/** Called after commit, inside nothing: e.g. to refresh summaries. */
 	now?: Date;
+	/** false: stage every row even when the import role is there (tests compare both ways). */
+	direct?: boolean;
 }
 
 export interface RejectSample {
@@ -63,6 +71,8 @@ export interface ImportResult {
 	bytes: number;
 	seconds: number;
 	timings?: Timings;
+	/** How readings went in: COPY straight into readings, or through the staging table. */
+	path?: 'direct' | 'staged';
 }
 
 export type ImportOutcome =
@@ -78,6 +88,127 @@ function esc(v: string | number | null): string {
 	if (v === null) return '\\N';
 	const s = String(v);
 	return /[\\\t\n\r]/.test(s) ? s.replace(/\\/g, '\\\\').replace(/\t/g, '\\t').replace(/\n/g, '\\n').replace(/\r/g, '\\r') : s;
+}
+
+/** Columns of a reading COPYed straight into readings; shop and batch are the import's own. */
+const READING_COLUMNS = 'shop_id, head_id, family_id, stage, cylinder, side, valve, measurement, value, measured_at, measured_by, instrument_id, batch_id';
+
+/** The role that may COPY into readings (it bypasses row-level security and may only insert
+ * readings; scripts/pg.sh creates it, drizzle/0005 grants it). */
+export const IMPORT_ROLE = 'lapmark_import';
+
+/** Whether this connection may take the direct way: the role is there, bypasses row-level
+ * security, may insert readings and may be switched to, and the head check can wait for commit. */
+export async function directAvailable(t: postgres.TransactionSql): Promise<boolean> {
+	const [r] = await t<{ ok: boolean }[]>`
+		select coalesce((
+			select r.rolbypassrls and pg_has_role(current_user, r.oid, 'MEMBER') and has_table_privilege(r.oid, 'readings', 'INSERT')
+			from pg_roles r where r.rolname = ${IMPORT_ROLE}
+		), false) and coalesce((
+			select condeferrable from pg_constraint where conname = 'readings_head_fk' and conrelid = 'readings'::regclass
+		), false) as ok`;
+	return r.ok;
+}
+
+type CopyTarget = 'readings' | 'stage';
+
+/**
+ * The transaction's connection takes one COPY at a time: this keeps one open, into readings (as
+ * the import role, for that statement only) or into the staging table, and switches between them.
+ */
+export class CopyChannel {
+	private target: CopyTarget | null = null;
+	private writable: Writable | null = null;
+	private ended: Promise<never> | null = null;
+	/** An error the server raised during a COPY; the stream loop checks it. */
+	error: Error | null = null;
+
+	constructor(private t: postgres.TransactionSql) {}
+
+	async write(target: CopyTarget, text: string): Promise<void> {
+		if (this.error) throw this.error;
+		if (this.target !== target) {
+			await this.end();
+			await this.begin(target);
+		}
+		if (!this.writable!.write(text)) await once(this.writable!, 'drain');
+	}
+
+	private async begin(target: CopyTarget) {
+		if (target === 'readings') await this.t.unsafe(`set local role ${IMPORT_ROLE}`);
+		const query = this.t.unsafe(
+			target === 'readings' ? `copy readings (${READING_COLUMNS}) from stdin` : `copy import_stage (${STAGE_COLUMNS}) from stdin`
+		) as postgres.PendingQuery<postgres.Row[]> & { reject: (e: Error) => void };
+		// postgres.js settles a COPY's promise with its stream when the COPY starts, so an error the
+		// server raises when the COPY ends (a check at the end of the statement) reaches no promise
+		// and the stream never finishes: the query's reject is wrapped to catch it.
+		const settle = query.reject;
+		this.ended = new Promise<never>((_, reject) => {
+			query.reject = (e: Error) => {
+				reject(e);
+				settle(e);
+			};
+		});
+		this.ended.catch(() => {});
+		query.catch(() => {}); // seen through `ended` and the stream
+		const writable = (await query.writable()) as Writable;
+		writable.on('error', (e) => (this.error ??= e));
+		this.writable = writable;
+		this.target = target;
+	}
+
+	/** Ends the open COPY, if any, and waits for the server to accept it. */
+	async end(): Promise<void> {
+		const writable = this.writable;
+		if (!writable) return;
+		if (this.error) throw this.error;
+		const target = this.target;
+		this.writable = null;
+		this.target = null;
+		writable.end();
+		await Promise.race([once(writable, 'finish'), this.ended]);
+		if (target === 'readings') await this.t`reset role`;
+	}
+
+	/** Ends the open COPY with an error, so that the connection leaves COPY mode and can roll back. */
+	abort(e: unknown) {
+		this.writable?.destroy(e instanceof Error ? e : new Error(String(e)));
+		this.writable = null;
+		this.target = null;
+	}
+}
+
+/** The line of each reading COPYed straight into readings, in the order they went in. */
+class DirectLines {
+	private lines = new Uint32Array(1024);
+	private ends = new Uint32Array(1024); // readings so far, after each row
+	private rows = 0;
+	readings = 0;
+	add(line: number, readings: number) {
+		if (this.rows === this.lines.length) {
+			const grow = (a: Uint32Array) => {
+				const b = new Uint32Array(a.length * 2);
+				b.set(a);
+				return b;
+			};
+			this.lines = grow(this.lines);
+			this.ends = grow(this.ends);
+		}
+		this.readings += readings;
+		this.lines[this.rows] = line;
+		this.ends[this.rows++] = this.readings;
+	}
+	/** The line of the n-th reading (1-based). */
+	lineOf(n: number): number {
+		let lo = 0;
+		let hi = this.rows - 1;
+		while (lo < hi) {
+			const mid = (lo + hi) >>> 1;
+			if (this.ends[mid] < n) lo = mid + 1;
+			else hi = mid;
+		}
+		return this.lines[lo];
+	}
 }
 
 /** The lock a running import holds for its whole transaction; a batch marked running whose lock
@@ -129,6 +260,60 @@ function guessDelimiter(start: string): string {
 	const counts = DELIMITERS.map((d) => header.split(d).length);
 	const best = Math.max(...counts);
 	return best > 1 ? DELIMITERS[counts.indexOf(best)] : ',';
+}
+
+/**
+ * The rows of the CSV, one chunk of text at a time: papaparse parses each chunk of the upload as
+ * it arrives and hands over all its rows at once. Parsing and the upload wait (paused) while the
+ * caller works through a batch, so the file is never held in memory. Returns null at the end.
+ */
+function csvBatches(feed: Readable, delimiter: string): () => Promise<string[][] | null> {
+	const batches: string[][][] = [];
+	let parser: Papa.Parser | null = null;
+	let finished = false;
+	let failure: unknown = null;
+	let wake: (() => void) | null = null;
+	const notify = () => {
+		const w = wake;
+		wake = null;
+		w?.();
+	};
+	Papa.parse<string[]>(feed, {
+		delimiter,
+		header: false,
+		skipEmptyLines: false, // blank lines count, so line numbers match the file
+		chunk(results, p) {
+			parser = p;
+			p.pause();
+			feed.pause();
+			if (results.data.length) batches.push(results.data);
+			notify();
+		},
+		complete() {
+			finished = true;
+			notify();
+		},
+		error(e) {
+			failure = e;
+			notify();
+		}
+	});
+	return async () => {
+		for (;;) {
+			if (failure) throw failure;
+			const batch = batches.shift();
+			if (batch) return batch;
+			if (finished) return null;
+			const woken = new Promise<void>((resolve) => (wake = resolve));
+			if (parser) {
+				const p: Papa.Parser = parser;
+				parser = null;
+				p.resume();
+				feed.resume();
+			}
+			await woken;
+		}
+	};
 }
 
 /** Enough of the start of the file to see its delimiter: a few lines, or all of a small file. */
@@ -187,7 +372,6 @@ export async function runImport(sql: postgres.Sql, body: AsyncIterable<Uint8Arra
 				known boolean not null default false, dup boolean not null default false, bad boolean not null default false
 			) on commit drop`);
 
-			const parser = Papa.parse(Papa.NODE_STREAM_INPUT, { delimiter, skipEmptyLines: false, header: false }) as unknown as NodeJS.ReadWriteStream;
 			const feed = Readable.from(
 				(async function* () {
 					yield start;
@@ -195,14 +379,13 @@ export async function runImport(sql: postgres.Sql, body: AsyncIterable<Uint8Arra
 				})(),
 				{ objectMode: false, encoding: 'utf8' }
 			);
-			feed.on('error', (e) => parser.emit('error', e));
-			feed.pipe(parser);
+			const nextBatch = csvBatches(feed, delimiter);
 
 			// The header first: planning it may query the database, which cannot happen while the
 			// connection is in COPY mode.
-			const rowsIn = (parser as AsyncIterable<string[]>)[Symbol.asyncIterator]();
-			const head = await rowsIn.next();
-			if (head.done) throw new ImportInputError(422, 'The file is empty.');
+			let batch = await nextBatch();
+			if (!batch) throw new ImportInputError(422, 'The file is empty.');
+			const head = { value: batch[0] };
 			const mapping = opts.mapping ?? (await rememberedMapping(t, opts.shopId, head.value));
 			const header = planHeader(head.value, opts.layout, mapping ?? {});
 			layout = header.ok ? header.plan.layout : header.layout;
@@ -212,65 +395,91 @@ export async function runImport(sql: postgres.Sql, body: AsyncIterable<Uint8Arra
 			const plan: HeaderPlan = header.plan;
 			if (opts.mapping && Object.keys(opts.mapping).length) await rememberMapping(t, opts.shopId, head.value, plan.layout, opts.mapping);
 
-			// Every query before the COPY: the connection takes none while it is in COPY mode.
+			// Every query before the first COPY: the connection takes none while it is in COPY mode.
 			const known = await knownSerials(t, opts.shopId);
-			const copyQuery = t.unsafe(`copy import_stage (${STAGE_COLUMNS}) from stdin`);
-			const writable = await copyQuery.writable();
-			copyQuery.catch(() => {}); // its failure is seen through the stream
-			let copyError: Error | null = null;
-			writable.on('error', (e) => (copyError = e));
-			let buf = '';
-			const flush = async () => {
-				if (!buf) return;
-				const ok = writable.write(buf);
-				buf = '';
-				if (!ok) await once(writable, 'drain');
-			};
+			const direct = !opts.dryRun && batchId !== null && opts.direct !== false && (await directAvailable(t));
+			// New heads are inserted after their readings (below, in finish): their check waits.
+			if (direct) await t`set constraints readings_head_fk deferred`;
+			const familyCodes = new Map([...ctx.families.values()].map((f) => [f.id, f.code]));
+			const channel = new CopyChannel(t);
+			let staged = '';
+			let straight = '';
+			const flushStaged = () => channel.write('stage', staged).then(() => void (staged = ''));
+			const flushStraight = () => channel.write('readings', straight).then(() => void (straight = ''));
 
 			const seen = new KeySieve();
+			const lines = new DirectLines();
 			const tally: Tally = { goodRows: 0, badRows: 0, goodReadings: 0, dupCandidates: 0, newHeads: new Map() };
+			// When rejected rows abort the file, readings stop going straight in at the first reject:
+			// all that went in must be deleted again.
+			let straightOn = direct;
+			const reject = (line: number, reason: string, cells: string[]) => {
+				tally.badRows++;
+				if (opts.onReject === 'abort') straightOn = false;
+				const raw = Papa.unparse([cells], { delimiter, newline: '' });
+				staged += `${line}\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t${esc(reason)}\t${esc(raw.slice(0, 4000))}\tf\tf\n`;
+			};
+			const dupFlags: boolean[] = [];
 			try {
 				let line = 1;
 				let rows = 0;
-				for (let next = await rowsIn.next(); !next.done; next = await rowsIn.next()) {
-					const cells = next.value;
-					line++; // blank lines are kept by the parser so line numbers match the file
-					if (copyError) throw copyError;
-					if (cells.length === 1 && cells[0].trim() === '') continue;
-					rows++;
-					const r = checkRow(cells, plan, ctx);
-					if (r.ok) {
-						const g = r.row;
-						const knownHead = known.get(g.serial);
-						const isKnown = knownHead !== undefined;
-						const headId = knownHead ? knownHead.id : noteNewHead(tally.newHeads, g);
-						tally.goodRows++;
-						tally.goodReadings += g.readings.length;
-						const keyPrefix = `${g.serial}\u0000${g.stage}\u0000${g.cylinder}\u0000${g.side}\u0000${g.valve}\u0000${g.measuredAt}\u0000`;
-						const prefix = `${line}\t${esc(g.serial)}\t${headId}\t${g.family.id}\t${g.stage}\t${g.cylinder}\t${g.side}\t${g.valve}\t`;
-						const suffix = `\t${g.measuredAt}\t${esc(g.measuredBy)}\t${esc(g.instrumentId)}\t${esc(g.mileageKm)}\t${esc(g.customer)}\t\\N\t\\N\t${isKnown ? 't' : 'f'}\t`;
-						for (const m of g.readings) {
-							// A key seen before (or a rare hash collision) is checked exactly in SQL.
-							const dup = seen.add(keyPrefix + m.measurement);
-							if (dup) tally.dupCandidates++;
-							buf += `${prefix}${m.measurement}\t${m.value}${suffix}${dup ? 't' : 'f'}\n`;
+				for (let i = 1; batch; batch = await nextBatch(), i = 0) {
+					for (; i < batch.length; i++) {
+						const cells = batch[i];
+						line++; // blank lines are kept by the parser so line numbers match the file
+						if (channel.error) throw channel.error;
+						if (cells.length === 1 && cells[0].trim() === '') continue;
+						rows++;
+						const r = checkRow(cells, plan, ctx);
+						if (!r.ok) {
+							reject(line, r.reason, cells);
+						} else {
+							const g = r.row;
+							const knownHead = known.get(g.serial);
+							const newHead = knownHead ? undefined : tally.newHeads.get(g.serial);
+							if (newHead && newHead.familyId !== g.family.id) {
+								// A head has one family: the first row that names the head decides it.
+								reject(line, `head ${g.serial} is a ${familyCodes.get(newHead.familyId)} head, not ${g.family.code}`, cells);
+							} else {
+								const headId = knownHead ? knownHead.id : noteNewHead(tally.newHeads, g);
+								tally.goodRows++;
+								tally.goodReadings += g.readings.length;
+								// A key seen before (or a rare hash collision) is checked exactly in SQL, so the
+								// whole row goes through the staging table.
+								seen.row(`${g.serial}\u0000${g.stage}\u0000${g.cylinder}\u0000${g.side}\u0000${g.valve}\u0000${g.measuredAt}\u0000`);
+								let anyDup = false;
+								dupFlags.length = 0;
+								for (const m of g.readings) {
+									const dup = seen.add(m.measurement);
+									dupFlags.push(dup);
+									anyDup ||= dup;
+								}
+								if (straightOn && !knownHead && !anyDup) {
+									lines.add(line, g.readings.length);
+									const prefix = `${opts.shopId}\t${headId}\t${g.family.id}\t${g.stage}\t${g.cylinder}\t${g.side}\t${g.valve}\t`;
+									const suffix = `\t${g.measuredAt}\t${esc(g.measuredBy)}\t${esc(g.instrumentId)}\t${batchId}\n`;
+									for (const m of g.readings) straight += `${prefix}${m.measurement}\t${m.value}${suffix}`;
+								} else {
+									if (anyDup) tally.dupCandidates += dupFlags.filter(Boolean).length;
+									const prefix = `${line}\t${esc(g.serial)}\t${headId}\t${g.family.id}\t${g.stage}\t${g.cylinder}\t${g.side}\t${g.valve}\t`;
+									const suffix = `\t${g.measuredAt}\t${esc(g.measuredBy)}\t${esc(g.instrumentId)}\t${esc(g.mileageKm)}\t${esc(g.customer)}\t\\N\t\\N\t${knownHead ? 't' : 'f'}\t`;
+									g.readings.forEach((m, k) => (staged += `${prefix}${m.measurement}\t${m.value}${suffix}${dupFlags[k] ? 't' : 'f'}\n`));
+								}
+							}
 						}
-					} else {
-						tally.badRows++;
-						const raw = Papa.unparse([cells], { delimiter, newline: '' });
-						buf += `${line}\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t\\N\t${esc(r.reason)}\t${esc(raw.slice(0, 4000))}\tf\tf\n`;
+						if (straight.length > 1 << 18) await flushStraight();
+						// Staged rows wait in a larger buffer while readings go straight in, so that the
+						// connection seldom switches from one COPY to the other.
+						if (staged.length > (direct ? 1 << 22 : 1 << 18)) await flushStaged();
+						if (batchId && rows % 25_000 === 0) void sql`update import_batches set progress_rows = ${rows} where id = ${batchId}`.catch(() => {});
 					}
-					if (buf.length > 1 << 18) await flush();
-					if (batchId && rows % 25_000 === 0) void sql`update import_batches set progress_rows = ${rows} where id = ${batchId}`.catch(() => {});
 				}
-				await flush();
-				writable.end();
-				await once(writable, 'finish');
-				if (copyError) throw copyError;
+				if (straight) await flushStraight();
+				if (staged) await flushStaged();
+				await channel.end();
 				if (rows === 0) throw new ImportInputError(422, 'The file has a header but no rows.');
 			} catch (e) {
-				// End the COPY with an error so the connection leaves COPY mode and can roll back.
-				writable.destroy(e instanceof Error ? e : new Error(String(e)));
+				channel.abort(e);
 				throw e;
 			}
 			tm.mark('stream_parse_check_copy');
@@ -280,8 +489,13 @@ export async function runImport(sql: postgres.Sql, body: AsyncIterable<Uint8Arra
 					select id from import_batches where shop_id = ${opts.shopId} and content_hash = ${hash} and status = 'committed' limit 1`;
 				if (dup) throw new DuplicateFile(dup.id);
 			}
-			return finish(t, opts, { batchId, hash, layout: plan.layout, bytes: source.bytes(), delimiter, t0, tm, tally });
+			return finish(t, opts, { batchId, hash, layout: plan.layout, bytes: source.bytes(), delimiter, t0, tm, tally, lines, path: direct ? 'direct' : 'staged' });
 		});
+		if (outcome.status === 201) {
+			// The commit runs the checks that waited for it (the new heads of readings COPYed in).
+			tm.mark('commit');
+			outcome.result.seconds = (performance.now() - t0) / 1000;
+		}
 		return outcome;
 	} catch (e) {
 		if (e instanceof DryRunOutcome) return e.outcome;
@@ -342,6 +556,9 @@ interface FinishInfo {
 	t0: number;
 	tm: ReturnType<typeof timer>;
 	tally: Tally;
+	/** Lines of the readings COPYed straight into readings. */
+	lines: DirectLines;
+	path: 'direct' | 'staged';
 }
 
 interface NewHead {
@@ -362,11 +579,13 @@ interface Tally {
 	newHeads: Map<string, NewHead>;
 }
 
-/** Notes a head the import creates (first row's identity columns win); returns its id. */
+/** Notes a head the import creates (first row's identity columns win); returns its id. The ids
+ * grow with time (UUID version 7), so a file's readings go in at the end of the index on
+ * (head, stage, position, measurement, time) instead of all over it. */
 function noteNewHead(heads: Map<string, NewHead>, g: GoodRow): string {
 	const h = heads.get(g.serial);
 	if (!h) {
-		const id = randomUUID();
+		const id = uuidv7();
 		heads.set(g.serial, { id, familyId: g.family.id, customer: g.customer, mileageKm: g.mileageKm, firstAt: g.measuredAt, hasFinal: g.stage === 'final' });
 		return id;
 	}
@@ -383,19 +602,43 @@ async function knownSerials(t: postgres.TransactionSql, shopId: string): Promise
 }
 
 /**
- * Remembers reading keys in a fixed 16 MB bit table (FNV-1a hash): a key whose bit is already
- * set may be a duplicate within the file and is marked for an exact check in SQL. Memory stays
- * flat however large the file; a hash collision only costs that exact check.
+ * Remembers reading keys in a fixed 16 MB bit table (a Bloom filter with two hashes): a key whose
+ * bits are both set already may be a duplicate within the file and is marked for an exact check in
+ * SQL. Memory stays flat however large the file; a false alarm only costs that exact check.
  */
 class KeySieve {
 	private bits = new Uint32Array(1 << 22); // 2^27 bits
-	add(key: string): boolean {
-		let h = 0x811c9dc5;
-		for (let i = 0; i < key.length; i++) {
-			h ^= key.charCodeAt(i);
-			h = Math.imul(h, 0x01000193);
+	// Two FNV-1a hashes (different offset bases), each finished with MurmurHash3's mixer so that
+	// the bits used as the index depend on every character. A key is a row's identity columns
+	// followed by a measurement: the identity part is hashed once per row.
+	private r1 = 0;
+	private r2 = 0;
+	row(prefix: string) {
+		let h1 = 0x811c9dc5;
+		let h2 = 0x050c5d1f;
+		for (let i = 0; i < prefix.length; i++) {
+			const c = prefix.charCodeAt(i);
+			h1 = Math.imul(h1 ^ c, 0x01000193);
+			h2 = Math.imul(h2 ^ c, 0x01000193);
 		}
-		const idx = (h >>> 0) & ((1 << 27) - 1);
+		this.r1 = h1;
+		this.r2 = h2;
+	}
+	/** Notes the row's key for this measurement; true when it may have been seen before. */
+	add(measurement: string): boolean {
+		let h1 = this.r1;
+		let h2 = this.r2;
+		for (let i = 0; i < measurement.length; i++) {
+			const c = measurement.charCodeAt(i);
+			h1 = Math.imul(h1 ^ c, 0x01000193);
+			h2 = Math.imul(h2 ^ c, 0x01000193);
+		}
+		const a = this.set(mix(h1));
+		const b = this.set(mix(h2));
+		return a && b;
+	}
+	private set(h: number): boolean {
+		const idx = h & ((1 << 27) - 1);
 		const word = idx >>> 5;
 		const bit = 1 << (idx & 31);
 		const had = (this.bits[word] & bit) !== 0;
@@ -404,7 +647,16 @@ class KeySieve {
 	}
 }
 
-/** Everything after the file is staged: checks across rows, then the writes. */
+/** MurmurHash3's 32-bit finaliser. */
+function mix(h: number): number {
+	h ^= h >>> 16;
+	h = Math.imul(h, 0x85ebca6b);
+	h ^= h >>> 13;
+	h = Math.imul(h, 0xc2b2ae35);
+	return (h ^ (h >>> 16)) >>> 0;
+}
+
+/** Everything after the file is read: checks across rows, then the writes. */
 async function finish(t: postgres.TransactionSql, opts: ImportOptions, info: FinishInfo): Promise<ImportOutcome> {
 	const { shopId } = opts;
 	const { tally } = info;
@@ -416,19 +668,48 @@ async function finish(t: postgres.TransactionSql, opts: ImportOptions, info: Fin
 	const sqlRejected = new Set<number>();
 	if (tally.dupCandidates > 0) {
 		// The same reading twice in the file: the later row is rejected whole. Only keys the
-		// sieve flagged are compared.
-		const rows = await t<{ line: number }[]>`
+		// sieve flagged are compared; first, staged readings with each other.
+		const within = await t<{ line: number; first: number }[]>`
 			with cand as (
 				select distinct serial, stage, cylinder, side, valve, measurement, measured_at from import_stage where dup
 			), k as (
 				select s.line, min(s.line) over (partition by s.serial, s.stage, s.cylinder, s.side, s.valve, s.measurement, s.measured_at) as first_line
 				from import_stage s join cand c using (serial, stage, cylinder, side, valve, measurement, measured_at)
 				where s.reason is null
-			), d as (select line, min(first_line) as first_line from k where line <> first_line group by line)
-			update import_stage s set reason = 'the same reading as line ' || d.first_line || ' (duplicate key in the file)'
-			from d where s.line = d.line and s.ctid = (select min(x.ctid) from import_stage x where x.line = d.line)
-			returning s.line`;
-		for (const r of rows) sqlRejected.add(r.line);
+			)
+			select line, min(first_line) as first from k where line <> first_line group by line`;
+		const firstLine = new Map(within.map((r) => [r.line, r.first]));
+		if (info.lines.readings > 0) {
+			// Then with the readings that went straight in. Such a reading is always its key's first
+			// occurrence: a row goes straight in only when none of its keys was seen before. (A new
+			// head has no readings but this batch's; the lookup goes by head, through the identity
+			// index.)
+			const hits = await t<{ line: number; id: string }[]>`
+				select s.line, r.id from import_stage s
+				join readings r on r.head_id = s.head_id and r.stage = s.stage and r.cylinder = s.cylinder and r.side = s.side
+					and r.valve = s.valve and r.measurement = s.measurement and r.measured_at = s.measured_at
+				where s.dup and not s.known and s.reason is null`;
+			if (hits.length) {
+				// The batch's readings went in in the order of the file, so a reading's rank among
+				// them (by id, which grows) gives its line.
+				const ranks = await t<{ id: string; n: number }[]>`
+					select id, n from (select id, (row_number() over (order by id))::int as n from readings where batch_id = ${info.batchId}) x
+					where id = any(${hits.map((h) => h.id)}::bigint[])`;
+				const rank = new Map(ranks.map((r) => [r.id, r.n]));
+				for (const h of hits) {
+					const line = info.lines.lineOf(rank.get(h.id)!);
+					firstLine.set(h.line, Math.min(firstLine.get(h.line) ?? line, line));
+				}
+			}
+		}
+		if (firstLine.size) {
+			const rows = await t<{ line: number }[]>`
+				update import_stage s set reason = 'the same reading as line ' || d.first || ' (duplicate key in the file)'
+				from unnest(${[...firstLine.keys()]}::int[], ${[...firstLine.values()]}::int[]) as d(line, first)
+				where s.line = d.line and s.ctid = (select min(x.ctid) from import_stage x where x.line = d.line)
+				returning s.line`;
+			for (const r of rows) sqlRejected.add(r.line);
+		}
 	}
 	info.tm.mark('sql_duplicates_in_file');
 	// A head that exists already keeps its family (compared once per head, not per reading).
@@ -509,6 +790,8 @@ async function finish(t: postgres.TransactionSql, opts: ImportOptions, info: Fin
 	}
 
 	if (aborting) {
+		// Readings that went straight in before the first reject was known go again.
+		if (info.lines.readings > 0) await t`delete from readings where shop_id = ${shopId} and batch_id = ${batchId}`;
 		const message = `${rejected} row${rejected === 1 ? '' : 's'} rejected; nothing was imported (rejected rows abort this import).`;
 		await t`
 			update import_batches set status = 'failed', error = ${message}, content_hash = ${info.hash}, rows_accepted = ${accepted},
@@ -557,7 +840,7 @@ async function finish(t: postgres.TransactionSql, opts: ImportOptions, info: Fin
 		createdHeads -= gone.count;
 	}
 
-	base.readings = fresh.count + again.count;
+	base.readings = info.lines.readings + fresh.count + again.count;
 	base.duplicates = candidates - base.readings;
 	base.createdHeads = createdHeads;
 	await t`
@@ -572,6 +855,7 @@ async function finish(t: postgres.TransactionSql, opts: ImportOptions, info: Fin
 			${JSON.stringify({ fileName: opts.fileName, accepted, rejected, readings: base.readings, duplicates: base.duplicates, createdHeads: base.createdHeads })}::jsonb)`;
 	info.tm.mark('sql_batch_audit');
 	base.timings = info.tm.timings;
+	base.path = info.path;
 	base.seconds = (performance.now() - info.t0) / 1000;
 	return { status: 201, result: base };
 }

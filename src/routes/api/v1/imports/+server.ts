@@ -61,6 +61,7 @@ export const POST: RequestHandler = async (event) => {
 			bytes: r.bytes,
 			seconds: Math.round(r.seconds * 1000) / 1000,
 			timings: r.timings,
+			path: r.path,
 			...('message' in outcome ? { message: outcome.message } : {})
 		};
 		return json(body, { status: outcome.status });
