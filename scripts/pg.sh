@@ -134,7 +134,7 @@ pg_admin_sql() {
 # Make sure the app's role, the import's role and the named database exist. Prints nothing.
 # lapmark_import (no login) bypasses row-level security so that the bulk import may COPY straight
 # into readings; the app's role may switch to it (SET ROLE) and it may only insert readings (granted
-# by drizzle/0005). Only a superuser can create a role that bypasses row-level security.
+# by drizzle/0006). Only a superuser can create a role that bypasses row-level security.
 pg_ensure_database() {
 	local db=$1 root pw; root=$(pg_data_root); pw=$(cat "$root/password")
 	pg_admin_sql -tA -c "select 1 from pg_roles where rolname = '$PG_APP_ROLE'" | grep -q 1 ||
@@ -142,6 +142,10 @@ pg_ensure_database() {
 	pg_admin_sql -tA -c "select 1 from pg_roles where rolname = '$PG_IMPORT_ROLE'" | grep -q 1 ||
 		pg_admin_sql -c "create role $PG_IMPORT_ROLE nologin bypassrls nosuperuser nocreatedb nocreaterole" \
 			-c "grant $PG_IMPORT_ROLE to $PG_APP_ROLE"
+	# It may also load without per-row foreign-key checks (session_replication_role, drizzle/0007);
+	# the import checks those keys for the whole batch before it commits.
+	pg_admin_sql -tA -c "select has_parameter_privilege('$PG_IMPORT_ROLE', 'session_replication_role', 'SET')" | grep -q t ||
+		pg_admin_sql -c "grant set on parameter session_replication_role to $PG_IMPORT_ROLE"
 	pg_admin_sql -tA -c "select 1 from pg_database where datname = '$db'" | grep -q 1 ||
 		pg_admin_sql -c "create database $db owner $PG_APP_ROLE"
 }

@@ -3,10 +3,11 @@
 // upload that dies half way.
 import { Readable } from 'node:stream';
 import fc from 'fast-check';
+import type postgres from 'postgres';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { withShop } from '../../src/lib/server/db/scope';
 import { families, instruments } from '../../src/lib/server/db/schema';
-import { directAvailable, reapDeadImports, runImport, type ImportOptions } from '../../src/lib/server/import/run';
+import { directAvailable, reapDeadImports, runImport, verifyKeys, type ImportOptions, type ImportPath } from '../../src/lib/server/import/run';
 import { ImportInputError } from '../../src/lib/server/import/text';
 import { undoBatch } from '../../src/lib/server/queries/imports';
 import { makeShop, testDb } from '../helpers/db';
@@ -348,9 +349,9 @@ describe('two ways into readings: straight in (COPY as the import role) and stag
 		'N-4,OAK-4,final,4,exhaust,1,2026-05-07T08:00:00Z,Ivy,0.061,1.9' // 13
 	].join('\n');
 
-	async function run(direct: boolean) {
-		const { shop } = await makeShop(db, direct ? 'way-direct' : 'way-staged');
-		const o = (over: Partial<ImportOptions> = {}) => opts({ shopId: shop.id, direct, ...over });
+	async function run(way: ImportPath) {
+		const { shop } = await makeShop(db, `way-${way}`);
+		const o = (over: Partial<ImportOptions> = {}) => opts({ shopId: shop.id, direct: way !== 'staged', replica: way === 'direct-replica', ...over });
 		await withShop(db, shop.id, (tx) =>
 			tx.insert(families).values([
 				{ shopId: shop.id, code: 'OAK-4', cylinders: 4, intakeValves: 2, exhaustValves: 1 },
@@ -371,11 +372,15 @@ describe('two ways into readings: straight in (COPY as the import role) and stag
 	}
 
 	it('give the same counts, reasons and stored readings', async () => {
-		const direct = await run(true);
-		const staged = await run(false);
+		const replica = await run('direct-replica');
+		const direct = await run('direct');
+		const staged = await run('staged');
 		expect(staged.out.result.path).toBe('staged');
-		if (await importRoleThere()) expect(direct.out.result.path).toBe('direct');
-		for (const way of [direct, staged]) {
+		if (await importRoleThere()) {
+			expect(replica.out.result.path).toBe('direct-replica');
+			expect(direct.out.result.path).toBe('direct');
+		}
+		for (const way of [replica, direct, staged]) {
 			expect(way.out.status).toBe(201);
 			expect(way.out.result).toMatchObject({ accepted: 7, rejected: 5, readings: 10, duplicates: 1, createdHeads: 3 });
 			expect(way.out.result.rejects.map((r) => [r.line, r.reason])).toEqual([
@@ -389,19 +394,53 @@ describe('two ways into readings: straight in (COPY as the import role) and stag
 			expect(way.stored).toHaveLength(11);
 		}
 		expect(direct.stored).toEqual(staged.stored);
+		expect(replica.stored).toEqual(staged.stored);
 	});
 
 	it('takes the staged way on a server where the import role may not insert readings', async () => {
-		// Revoked inside a transaction that is rolled back: no other session sees it.
 		const there = await importRoleThere();
-		const ways = await sql
+		const ways = await waysBeforeAndAfter(async (t) => {
+			if (there) await t`revoke insert on readings from lapmark_import`;
+		});
+		expect(ways).toEqual([
+			{ direct: there, replica: there },
+			{ direct: false, replica: false }
+		]);
+	});
+
+	it('keeps every row\'s foreign-key checks when a summary trigger would not fire in replica mode', async () => {
+		const there = await importRoleThere();
+		const ways = await waysBeforeAndAfter((t) => t`alter table readings enable trigger readings_stats_insert`); // origin mode only
+		expect(ways).toEqual([
+			{ direct: there, replica: there },
+			{ direct: there, replica: false }
+		]);
+	});
+
+	it('stops an import whose readings, loaded without per-row checks, lack their head, batch or instrument', async () => {
+		if (!(await importRoleThere())) return;
+		const failure = await sql
 			.begin(async (t) => {
-				const before = await directAvailable(t);
-				if (there) await t`revoke insert on readings from lapmark_import`;
-				throw Object.assign(new Error('roll back'), { ways: [before, await directAvailable(t)] });
+				await t`select set_config('lapmark.shop_id', ${shopId}, true)`;
+				const [fam] = await t<{ id: string }[]>`select id from families where shop_id = ${shopId} and code = 'OAK-4'`;
+				const [batch] = await t<{ id: string }[]>`
+					insert into import_batches (shop_id, file_name, content_hash, layout, on_reject, status)
+					values (${shopId}, 'keys.csv', 'keys', 'wide', 'skip', 'running') returning id`;
+				// What a faulty direct way would write: readings of a head and an instrument nobody stored.
+				await t`set local role lapmark_import`;
+				await t`set local session_replication_role = replica`;
+				await t`
+					insert into readings (shop_id, head_id, family_id, stage, cylinder, side, valve, measurement, value, measured_at, measured_by, instrument_id, batch_id)
+					select ${shopId}::uuid, gen_random_uuid(), ${fam.id}::uuid, 'as_received', 1, 'intake', v, 'clearance', 0.05, now(), 'Jo',
+						case when v = 2 then gen_random_uuid() end, ${batch.id}::uuid
+					from generate_series(1, 2) v`;
+				await t`set local session_replication_role = origin`;
+				await t`reset role`;
+				await verifyKeys(t, shopId, batch.id);
+				return null;
 			})
-			.catch((e) => e.ways);
-		expect(ways).toEqual([there, false]);
+			.catch((e: Error) => e.message);
+		expect(failure).toBe('The import was stopped before storing anything: of its 2 readings, 2 without their head, 1 with an instrument not on record.');
 	});
 
 	it('when rejected rows abort, a reject found only at the end leaves nothing of the file', async () => {
@@ -426,6 +465,18 @@ describe('two ways into readings: straight in (COPY as the import role) and stag
 		expect(after).toEqual(sums);
 	});
 });
+
+/** The ways into readings before and after a change made inside a transaction that is rolled
+ * back: no other session sees it. */
+async function waysBeforeAndAfter(change: (t: postgres.TransactionSql) => Promise<unknown>) {
+	return sql
+		.begin(async (t) => {
+			const before = await directAvailable(t);
+			await change(t);
+			throw Object.assign(new Error('roll back'), { ways: [before, await directAvailable(t)] });
+		})
+		.catch((e) => e.ways);
+}
 
 async function importRoleThere() {
 	const [r] = await sql`select exists (select 1 from pg_roles where rolname = 'lapmark_import') as there`;

@@ -301,7 +301,8 @@ describe('summaries stay equal to a full recomputation', () => {
 		};
 		const [{ role }] = await sql`select exists (select 1 from pg_roles where rolname = 'lapmark_import') as role`;
 		const batches: string[] = [];
-		for (const [prefix, direct] of [['RUN-A', true], ['RUN-B', false], ['RUN-C', true]] as const) {
+		for (const [prefix, way] of [['RUN-A', 'direct-replica'], ['RUN-B', 'staged'], ['RUN-C', 'direct']] as const) {
+			const direct = way !== 'staged';
 			const out = await runImport(sql, Readable.from([Buffer.from(file(prefix, prefix.length * 7 + (direct ? 1 : 2)))]), {
 				shopId,
 				actor: { userId: null, label: 'summaries test' },
@@ -310,10 +311,11 @@ describe('summaries stay equal to a full recomputation', () => {
 				onReject: 'abort',
 				limitBytes: 1 << 24,
 				now: new Date('2026-12-01T00:00:00Z'),
-				direct
+				direct,
+				replica: way === 'direct-replica'
 			});
 			expect(out.status).toBe(201);
-			expect(out.result.path).toBe(direct && role ? 'direct' : 'staged');
+			expect(out.result.path).toBe(role ? way : 'staged');
 			expect(out.result.readings).toBe(6 * 16 * 3);
 			batches.push(out.result.batchId!);
 			await expectConsistent();
