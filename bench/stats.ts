@@ -9,8 +9,10 @@
 //   2. check the summaries against a full recomputation, and the hand-written summary SQL of
 //      step 4 against the raw SQL;
 //   3. start `node build` on BENCH_PORT (default 3310) and time each route over HTTP with the
-//      demo owner's API token, median of BENCH_RUNS (default 20) after 3 warm-up requests,
-//      in BENCH_BLOCKS (default 4) blocks alternating with those of step 4;
+//      demo owner's API token, median of BENCH_RUNS (default 20), in BENCH_BLOCKS (default 4)
+//      blocks alternating with those of step 4; the server is first warmed with BENCH_WARMUP
+//      (default 40) untimed requests to each route, as a server that has been up a while is (its
+//      JIT has compiled the request path), and each block starts with 3 more;
 //   4. through psql, as the app's role with the shop set (row-level security on, as in the
 //      app), median of the same number of runs: the bare SQL of the same aggregate over the
 //      readings (sqlMs; "ratio" = route / sqlMs, the issue's measure) and the same figures read
@@ -355,6 +357,10 @@ try {
 		return times;
 	};
 	const httpMedian = async (path: string) => median(await httpTimes(path));
+	// A freshly started server runs the request path in V8's interpreter; timing its first few
+	// dozen requests measures the JIT, not the route (GET /api/v1/me: ~7 ms cold, ~3 ms warm).
+	const warmup = Number(process.env.BENCH_WARMUP ?? 40);
+	for (const path of ['/api/v1/me', ...Object.values(routes)]) await httpTimes(path, warmup);
 
 	// The floor every API request pays: token lookup, a transaction, JSON.
 	const floorMs = r1(await httpMedian('/api/v1/me'));
