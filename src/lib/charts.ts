@@ -33,6 +33,15 @@ export function fmtWithUnit(m: Measurement, x: number | null | undefined, extra 
 	const s = fmtValue(m, x, extra);
 	return s === '–' ? s : `${s} ${unitOf(m)}`;
 }
+/** Limits as a table cell: "0.020 – 0.080", "at most 0.080", "at least 1.00" or "none set". */
+export function fmtLimits(m: Measurement, limits: { min: number | null; max: number | null } | null | undefined): string {
+	const min = limits?.min ?? null;
+	const max = limits?.max ?? null;
+	if (min !== null && max !== null) return `${fmtValue(m, min)} – ${fmtValue(m, max)}`;
+	if (max !== null) return `at most ${fmtValue(m, max)}`;
+	if (min !== null) return `at least ${fmtValue(m, min)}`;
+	return 'none set';
+}
 export function fmtPct(x: number | null | undefined, decimals = 1): string {
 	if (x === null || x === undefined || !Number.isFinite(x)) return '–';
 	return `${(x * 100).toFixed(decimals)} %`;

@@ -2,7 +2,7 @@ import { isHttpError } from '@sveltejs/kit';
 import { z } from 'zod';
 import { readFilters } from '$lib/filters';
 import { READING_SORTS, type ReadingSort } from '$lib/schemas/readings';
-import { familiesFor } from '$lib/server/filter-families';
+import { familiesFor } from '$lib/server/services/analysis';
 import { db } from '$lib/server/db';
 import { withShop } from '$lib/server/db/scope';
 import { countsOf, readingSelection, readingsPageOf } from '$lib/server/services/readings';

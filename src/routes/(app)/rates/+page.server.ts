@@ -1,4 +1,4 @@
-import { familiesFor } from '$lib/server/filter-families';
+import { familiesFor } from '$lib/server/services/analysis';
 import type { PageServerLoad } from './$types';
 
 // The figures are fetched by the browser from /api/v1/stats/rates.
