@@ -3,21 +3,14 @@
 // keyboard alone, and no page has a serious or critical accessibility violation (axe-core).
 // Screenshots land in tests/e2e/screenshots/ for a person to look at.
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
-import type { Browser, BrowserContext, Page } from 'playwright-core';
-import { axeSerious, chartsSettled, launch, shot, signInWithPassword } from '../helpers/browser';
+import type { BrowserContext, Page } from 'playwright-core';
+import { axeSerious, chartsSettled, sharedBrowser, shot, signInWithPassword } from '../helpers/browser';
 
 const baseURL = inject('baseURL');
-let browser: Browser;
-
-beforeAll(async () => {
-	browser = await launch();
-});
-afterAll(async () => {
-	await browser?.close();
-});
+const shared = sharedBrowser();
 
 async function signedIn(role: string, opts: { width?: number; dark?: boolean } = {}): Promise<{ context: BrowserContext; page: Page }> {
-	const context = await browser.newContext({ viewport: { width: opts.width ?? 1440, height: 1000 }, colorScheme: opts.dark ? 'dark' : 'light' });
+	const context = await shared.browser.newContext({ viewport: { width: opts.width ?? 1440, height: 1000 }, colorScheme: opts.dark ? 'dark' : 'light' });
 	const page = await context.newPage();
 	page.on('pageerror', (e) => console.error(`[page error as ${role}]`, e.message));
 	await signInWithPassword(page, baseURL, `${role}@brackenford.example`, `brackenford-${role}-demo`);
@@ -188,7 +181,7 @@ describe('check a reading at the bench', () => {
 	});
 
 	it('answers without JavaScript too, from the form sent to the server', async () => {
-		const context = await browser.newContext({ javaScriptEnabled: false });
+		const context = await shared.browser.newContext({ javaScriptEnabled: false });
 		const page = await context.newPage();
 		try {
 			await signInWithPasswordNoJs(page);
@@ -225,7 +218,7 @@ describe('look and accessibility', () => {
 				await context?.close();
 			});
 			it('has no serious or critical axe-core violation on the sign-in pages', async () => {
-				const anon = await browser.newContext({ colorScheme: dark ? 'dark' : 'light' });
+				const anon = await shared.browser.newContext({ colorScheme: dark ? 'dark' : 'light' });
 				try {
 					const p = await anon.newPage();
 					const found: string[] = [];

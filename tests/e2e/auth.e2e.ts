@@ -1,24 +1,16 @@
 // Signing in as a person does it, in Debian's chromium: by password, by a link read from the
 // local fake mail server, and by accepting an owner's invitation; then signing out.
-import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
-import type { Browser } from 'playwright-core';
-import { launch, shot, signInWithPassword } from '../helpers/browser';
+import { describe, expect, inject, it } from 'vitest';
+import { sharedBrowser, shot, signInWithPassword } from '../helpers/browser';
 import { firstLink, waitForMail } from '../helpers/mail';
 import { uniqueEmail } from '../helpers/people';
 
 const baseURL = inject('baseURL');
-let browser: Browser;
-
-beforeAll(async () => {
-	browser = await launch();
-});
-afterAll(async () => {
-	await browser?.close();
-});
+const shared = sharedBrowser();
 
 describe('signing in and out', () => {
 	it('by password, then out', async () => {
-		const page = await browser.newPage();
+		const page = await shared.browser.newPage();
 		await signInWithPassword(page, baseURL, 'owner@brackenford.example', 'brackenford-owner-demo');
 		await page.getByTestId('overview-figures').waitFor();
 		expect(await page.getByTestId('user-name').textContent()).toMatch(/./);
@@ -31,7 +23,7 @@ describe('signing in and out', () => {
 	});
 
 	it('says so, without telling whether the address exists, on a wrong password', async () => {
-		const page = await browser.newPage();
+		const page = await shared.browser.newPage();
 		for (const email of ['viewer@brackenford.example', 'nobody-here@brackenford.example']) {
 			await page.goto(`${baseURL}/signin`);
 			await page.getByLabel('E-mail address').fill(email);
@@ -43,7 +35,7 @@ describe('signing in and out', () => {
 	});
 
 	it('by a link from the e-mail, once', async () => {
-		const page = await browser.newPage();
+		const page = await shared.browser.newPage();
 		const since = Date.now() - 1000;
 		await page.goto(`${baseURL}/signin`);
 		await page.getByRole('tab', { name: 'E-mail me a link' }).click();
@@ -56,7 +48,7 @@ describe('signing in and out', () => {
 		await page.getByTestId('overview-figures').waitFor();
 		await shot(page, 'auth-02-signed-in-by-link');
 		// The same link a second time is refused with a clear message.
-		const other = await browser.newPage();
+		const other = await shared.browser.newPage();
 		await other.goto(link);
 		await other.waitForURL(/\/signin/);
 		await expect(other.getByRole('alert').textContent()).resolves.toMatch(/expired or was already used/);
@@ -65,7 +57,7 @@ describe('signing in and out', () => {
 	});
 
 	it('an owner invites a new machinist, who accepts and signs out', async () => {
-		const owner = await browser.newPage();
+		const owner = await shared.browser.newPage();
 		await signInWithPassword(owner, baseURL, 'owner@brackenford.example', 'brackenford-owner-demo');
 		await owner.goto(`${baseURL}/settings/members`);
 		const email = uniqueEmail('new-machinist');
@@ -77,7 +69,7 @@ describe('signing in and out', () => {
 		await shot(owner, 'auth-03-invitation-sent');
 		const link = firstLink(await waitForMail(email, /invited/, since));
 
-		const ctx = await browser.newContext();
+		const ctx = await shared.browser.newContext();
 		const guest = await ctx.newPage();
 		await guest.goto(link);
 		await guest.getByLabel('Your name').fill('Rowan Test');

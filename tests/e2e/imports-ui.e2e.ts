@@ -2,19 +2,12 @@
 // a column the server does not know matched by hand, a dry run with its first rejects, the import,
 // the history row with its rejected rows as CSV, undo; and an upload cancelled half way, which
 // leaves nothing stored.
-import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
-import type { Browser, Page } from 'playwright-core';
-import { launch, shot, signInWithPassword } from '../helpers/browser';
+import { describe, expect, inject, it } from 'vitest';
+import type { Page } from 'playwright-core';
+import { sharedBrowser, shot, signInWithPassword } from '../helpers/browser';
 
 const baseURL = inject('baseURL');
-let browser: Browser;
-
-beforeAll(async () => {
-	browser = await launch();
-});
-afterAll(async () => {
-	await browser?.close();
-});
+const shared = sharedBrowser();
 
 const HEAD = 'head_serial,family,stage,cylinder,side,valve,measured_at,measured_by,clearance_mm';
 
@@ -43,7 +36,7 @@ async function drop(page: Page, name: string, text: string) {
 
 describe('the Imports page', () => {
 	it('maps an unknown column, checks, imports, offers the rejects and undoes, by drag and drop', async () => {
-		const context = await browser.newContext({ viewport: { width: 1280, height: 1000 } });
+		const context = await shared.browser.newContext({ viewport: { width: 1280, height: 1000 } });
 		const page = await context.newPage();
 		page.on('dialog', (d) => void d.accept()); // the undo's confirmation
 		try {
@@ -109,7 +102,7 @@ describe('the Imports page', () => {
 	});
 
 	it('cancels an upload half way and stores nothing of it', async () => {
-		const context = await browser.newContext({ viewport: { width: 1280, height: 1000 } });
+		const context = await shared.browser.newContext({ viewport: { width: 1280, height: 1000 } });
 		const page = await context.newPage();
 		try {
 			await signInWithPassword(page, baseURL, 'engineer@brackenford.example', 'brackenford-engineer-demo');

@@ -1,6 +1,7 @@
 // Debian's chromium driven by playwright-core: never a browser download.
 import { mkdirSync, readFileSync } from 'node:fs';
 import { chromium, type Browser, type Page } from 'playwright-core';
+import { afterAll, beforeAll } from 'vitest';
 
 export const SCREENSHOTS = new URL('../e2e/screenshots/', import.meta.url).pathname;
 
@@ -18,6 +19,19 @@ export async function launch(): Promise<Browser> {
 			'--disable-sync'
 		]
 	});
+}
+
+/** One chromium for a test file, launched before its tests and closed after them; call it at the
+ * file's top level and use `.browser` inside the tests. */
+export function sharedBrowser(): { readonly browser: Browser } {
+	const holder = {} as { browser: Browser };
+	beforeAll(async () => {
+		holder.browser = await launch();
+	});
+	afterAll(async () => {
+		await holder.browser?.close();
+	});
+	return holder;
 }
 
 export async function shot(page: Page, name: string) {
