@@ -263,7 +263,7 @@ export async function checkReading(conn: Conn, shopId: string, q: CheckQuery): P
 		percentile: rank === null ? null : 100 * rank,
 		robustZ: modifiedZ(value, median, mad),
 		tukey: tukeyFlag(value, fences),
-		reasons: outlierReasons({ value, limits: { min: limit?.min, max: limit?.max }, fences, median, mad }),
+		reasons: outlierReasons({ value, limits: { min: limit?.min, max: limit?.max }, fences, median, mad, decimals: info.decimals }),
 		suggestion: suggestDecision(q.measurement, q.stage, value, limit, rework),
 		caution: CAUTION
 	};
@@ -325,7 +325,7 @@ export async function outliers(conn: Conn, shopId: string, q: OutliersQuery): Pr
 				measuredBy: r.measuredBy,
 				limits: r.limitFrom ? { min: r.limitMin, max: r.limitMax, effectiveFrom: r.limitFrom } : null,
 				modifiedZ: modifiedZ(r.value, p.median, p.mad),
-				reasons: outlierReasons({ value: r.value, limits: { min: r.limitMin, max: r.limitMax }, fences, median: p.median, mad: p.mad })
+				reasons: outlierReasons({ value: r.value, limits: { min: r.limitMin, max: r.limitMax }, fences, median: p.median, mad: p.mad, decimals: MEASUREMENT_INFO[q.measurement].decimals })
 			};
 		})
 	};

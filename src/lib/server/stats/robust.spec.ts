@@ -84,6 +84,13 @@ group('outlierReasons', () => {
 		expect(reasons[1].text).toBe('245.57 is above the high fence 204.981 (Q3 + 1.5 × IQR).');
 		expect(reasons[2].text).toContain('30.0');
 	});
+	it('writes readings and limits with the measurement\'s decimals and summaries with one more', () => {
+		// Same Grubbs data as above (REFERENCES.md B7 [C]); only the formatting differs.
+		const reasons = outlierReasons({ value: 245.57, limits: { min: 195, max: 210 }, ...base, decimals: 1 });
+		expect(reasons[0].text).toBe('245.6 is above the upper limit 210.0.');
+		expect(reasons[1].text).toBe('245.6 is above the high fence 204.98 (Q3 + 1.5 × IQR).');
+		expect(reasons[2].text).toMatch(/\(far from the median \d+\.\d{2}\)\.$/);
+	});
 	it('a value inside everything has no reasons', () => {
 		// Grubbs data, REFERENCES.md B7 [C]
 		expect(outlierReasons({ value: 200.19, limits: { min: 195, max: 210 }, ...base })).toEqual([]);

@@ -64,10 +64,13 @@ export interface OutlierInput {
 	median: number | null;
 	/** Raw MAD (not scaled by 1.4826). */
 	mad: number | null;
+	/** The measurement's usual decimals: readings and limits are written with them, fences and
+	 * the median (summaries) with one more. Without it, 6 significant digits. */
+	decimals?: number;
 }
 
 /** Rounds for display in reason texts: 6 significant digits, no trailing zeros. */
-function fmt(x: number): string {
+function sig6(x: number): string {
 	return String(Number(x.toPrecision(6)));
 }
 
@@ -76,7 +79,9 @@ function fmt(x: number): string {
  * the modified z-score. An empty array means nothing flags it.
  */
 export function outlierReasons(input: OutlierInput): OutlierReason[] {
-	const { value, limits, fences, median, mad } = input;
+	const { value, limits, fences, median, mad, decimals } = input;
+	const fmt = decimals === undefined ? sig6 : (x: number) => x.toFixed(decimals);
+	const fmtSummary = decimals === undefined ? sig6 : (x: number) => x.toFixed(decimals + 1);
 	if (!Number.isFinite(value)) throw new RangeError('outlierReasons: value is not a finite number');
 	const out: OutlierReason[] = [];
 	const min = limits.min ?? null;
@@ -91,19 +96,19 @@ export function outlierReasons(input: OutlierInput): OutlierReason[] {
 	if (flag === 'low') {
 		out.push({
 			code: 'tukey_low',
-			text: `${fmt(value)} is below the low fence ${fmt(fences.low as number)} (Q1 − 1.5 × IQR).`
+			text: `${fmt(value)} is below the low fence ${fmtSummary(fences.low as number)} (Q1 − 1.5 × IQR).`
 		});
 	} else if (flag === 'high') {
 		out.push({
 			code: 'tukey_high',
-			text: `${fmt(value)} is above the high fence ${fmt(fences.high as number)} (Q3 + 1.5 × IQR).`
+			text: `${fmt(value)} is above the high fence ${fmtSummary(fences.high as number)} (Q3 + 1.5 × IQR).`
 		});
 	}
 	const z = modifiedZ(value, median, mad);
 	if (z !== null && Math.abs(z) > MODIFIED_Z_THRESHOLD) {
 		out.push({
 			code: 'modified_z',
-			text: `Modified z-score ${z.toFixed(1)} is beyond ±${MODIFIED_Z_THRESHOLD} (far from the median ${fmt(median as number)}).`
+			text: `Modified z-score ${z.toFixed(1)} is beyond ±${MODIFIED_Z_THRESHOLD} (far from the median ${fmtSummary(median as number)}).`
 		});
 	}
 	return out;
