@@ -1,6 +1,6 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { fromCanonical, parseSide, parseStage, toCanonical } from './measurements';
+import { fixedApart, fromCanonical, parseSide, parseStage, toCanonical } from './measurements';
 
 describe('unit conversion', () => {
 	// NIST SP 811 (2008), Appendix B: 1 in = 25.4 mm exactly (international agreement of 1959).
@@ -60,5 +60,15 @@ describe('sides and stages as shops write them', () => {
 		expect(parseStage('As Received')).toBe('as_received');
 		expect(parseStage('final')).toBe('final');
 		expect(parseStage('after')).toBeNull();
+	});
+});
+
+describe('fixedApart', () => {
+	it('keeps the usual decimals unless the value would print equal to what it is compared with', () => {
+		expect(fixedApart(0.201, 0.12, 3)).toBe('0.201');
+		expect(fixedApart(0.1004, 0.1, 3)).toBe('0.1004');
+		expect(fixedApart(0.10000004, 0.1, 3)).toBe('0.1000000'); // at most 4 more decimals
+		expect(fixedApart(0.1, 0.1, 3)).toBe('0.100');
+		expect(fixedApart(0.05, null, 3)).toBe('0.050');
 	});
 });

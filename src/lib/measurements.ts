@@ -137,6 +137,16 @@ export function roundSig(x: number, digits: number): number {
 }
 
 /** Normalise a side as shops write it: intake/exhaust/in/ex/i/e in any case. */
+/**
+ * `x` with `decimals` decimals, or with as many more (up to 4) as it takes not to print it equal
+ * to `other` when it differs from it: "0.1004 is over the limit 0.100", never "0.100 … 0.100".
+ */
+export function fixedApart(x: number, other: number | null | undefined, decimals: number): string {
+	let d = decimals;
+	while (d < decimals + 4 && other !== null && other !== undefined && x !== other && x.toFixed(d) === other.toFixed(d)) d++;
+	return x.toFixed(d);
+}
+
 export function parseSide(text: string): Side | null {
 	const t = text.trim().toLowerCase();
 	if (t === 'intake' || t === 'in' || t === 'i') return 'intake';

@@ -10,7 +10,11 @@ describe('suggestDecision', () => {
 	it('clearance over the service limit → replace the guide, saying why', () => {
 		const s = suggestDecision('clearance', 'as_received', 0.112, service, rework);
 		expect(s.decision).toBe('replace_guide');
-		expect(s.rule).toBe('Stem-to-guide clearance 0.112 mm is over the service limit 0.1 mm: replace the guide. Guides come first: every seat cut pilots off the guide.');
+		expect(s.rule).toBe('Stem-to-guide clearance 0.112 mm is over the service limit 0.100 mm: replace the guide. Guides come first: every seat cut pilots off the guide.');
+	});
+
+	it('writes a value just over the limit with the decimals that tell them apart', () => {
+		expect(suggestDecision('clearance', 'as_received', 0.1004, service, rework).rule).toMatch(/^Stem-to-guide clearance 0\.1004 mm is over the service limit 0\.100 mm:/);
 	});
 
 	it('clearance within service but over rework → knurl (a short-term repair) or replace', () => {
@@ -22,7 +26,7 @@ describe('suggestDecision', () => {
 	it('clearance well inside → nothing to do', () => {
 		expect(suggestDecision('clearance', 'as_received', 0.05, service, rework)).toEqual({
 			decision: null,
-			rule: 'Stem-to-guide clearance 0.05 mm is within the limits: this reading alone calls for no repair.'
+			rule: 'Stem-to-guide clearance 0.050 mm is within the limits: this reading alone calls for no repair.'
 		});
 	});
 

@@ -3,7 +3,7 @@
 // first, because every seat cut pilots off the guide; a stem, margin or face out of limits means
 // a new valve; a seat out of round or too wide is recut; a seal test that fails is lapped again.
 // They suggest; a person decides, against the engine maker's service data.
-import { MEASUREMENT_INFO, UNIT_LABEL, type Measurement, type Stage } from '../../measurements';
+import { MEASUREMENT_INFO, UNIT_LABEL, fixedApart, type Measurement, type Stage } from '../../measurements';
 import type { DecisionKindName } from '../../schemas/stats';
 
 export interface RuleLimits {
@@ -21,7 +21,6 @@ export interface Suggestion {
 export const CAUTION =
 	"Limits here are the shop's own entries. They do not replace the engine maker's service data; a worn guide or seat left in service can drop a valve and destroy the engine.";
 
-const fmt = (x: number) => String(Number(x.toPrecision(6)));
 
 /**
  * The suggestion for one reading, judged against the limits in force (`limits`) and, for an
@@ -38,7 +37,11 @@ export function suggestDecision(
 	const info = MEASUREMENT_INFO[measurement];
 	const unit = UNIT_LABEL[info.unit];
 	const what = info.label.charAt(0).toUpperCase() + info.label.slice(1);
-	const v = `${fmt(value)} ${unit}`;
+	// Limits with the measurement's usual decimals; the value with as many as it takes not to
+	// look equal to the limit it is judged against.
+	const fmt = (x: number) => x.toFixed(info.decimals);
+	const near = limits && limits.max !== null && value > limits.max ? limits.max : (limits?.min ?? null);
+	const v = `${fixedApart(value, near, info.decimals)} ${unit}`;
 	if (!limits || (limits.min === null && limits.max === null)) {
 		return { decision: null, rule: `No limits are set for this family and measurement, so the reading cannot be judged.` };
 	}

@@ -6,6 +6,7 @@
 // - Percentile rank with mid-ranks for ties (see percentileRank).
 
 import { quantileRankSorted } from 'simple-statistics';
+import { fixedApart } from '../../measurements';
 import type { Fences } from './summary';
 import type { Values } from './input';
 
@@ -80,28 +81,29 @@ function sig6(x: number): string {
  */
 export function outlierReasons(input: OutlierInput): OutlierReason[] {
 	const { value, limits, fences, median, mad, decimals } = input;
-	const fmt = decimals === undefined ? sig6 : (x: number) => x.toFixed(decimals);
+	// The value against what it is compared with: never printed equal to it.
+	const fmt: (x: number, against?: number | null) => string = decimals === undefined ? sig6 : (x, against) => fixedApart(x, against, decimals);
 	const fmtSummary = decimals === undefined ? sig6 : (x: number) => x.toFixed(decimals + 1);
 	if (!Number.isFinite(value)) throw new RangeError('outlierReasons: value is not a finite number');
 	const out: OutlierReason[] = [];
 	const min = limits.min ?? null;
 	const max = limits.max ?? null;
 	if (min !== null && value < min) {
-		out.push({ code: 'below_limit', text: `${fmt(value)} is below the lower limit ${fmt(min)}.` });
+		out.push({ code: 'below_limit', text: `${fmt(value, min)} is below the lower limit ${fmt(min)}.` });
 	}
 	if (max !== null && value > max) {
-		out.push({ code: 'above_limit', text: `${fmt(value)} is above the upper limit ${fmt(max)}.` });
+		out.push({ code: 'above_limit', text: `${fmt(value, max)} is above the upper limit ${fmt(max)}.` });
 	}
 	const flag = tukeyFlag(value, fences);
 	if (flag === 'low') {
 		out.push({
 			code: 'tukey_low',
-			text: `${fmt(value)} is below the low fence ${fmtSummary(fences.low as number)} (Q1 − 1.5 × IQR).`
+			text: `${fmt(value, fences.low)} is below the low fence ${fmtSummary(fences.low as number)} (Q1 − 1.5 × IQR).`
 		});
 	} else if (flag === 'high') {
 		out.push({
 			code: 'tukey_high',
-			text: `${fmt(value)} is above the high fence ${fmtSummary(fences.high as number)} (Q3 + 1.5 × IQR).`
+			text: `${fmt(value, fences.high)} is above the high fence ${fmtSummary(fences.high as number)} (Q3 + 1.5 × IQR).`
 		});
 	}
 	const z = modifiedZ(value, median, mad);
