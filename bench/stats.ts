@@ -90,7 +90,7 @@ const system = <T>(work: (t: postgres.TransactionSql) => Promise<T>) =>
 // 2. Summaries against a full recomputation
 
 const [consistency] = await system(
-	(t) => t<{ moments: number; counts: number; groups: number }[]>`
+	(t) => t<{ moments: number; counts: number; totals: number; groups: number }[]>`
 		with e as (
 			select shop_id, series_key, family_id, lapmark_month(measured_at) as month, count(*)::int as n,
 				avg(value) as mean, var_pop(value) * count(*) as m2, min(value) as mn, max(value) as mx
@@ -105,9 +105,12 @@ const [consistency] = await system(
 					or abs(e.mean - s.mean) > 1e-12 * abs(e.mean) or abs(e.m2 - s.m2) > 1e-9 * greatest(e.m2, 1e-12)) as moments,
 			(select count(*)::int from c full join reading_value_counts v using (shop_id, series_key, family_id, month, value)
 				where c.n is distinct from v.n) as counts,
+			(select count(*)::int from (select shop_id, series_key, family_id, value, sum(n)::int as n from c group by 1, 2, 3, 4) a
+				full join reading_value_totals v using (shop_id, series_key, family_id, value)
+				where a.n is distinct from v.n) as totals,
 			(select count(*)::int from reading_summaries) as groups`
 );
-log(`summaries: ${consistency.groups} group-months; ${consistency.moments} moment rows and ${consistency.counts} count rows differ from a full recomputation`);
+log(`summaries: ${consistency.groups} group-months; ${consistency.moments} moment rows, ${consistency.counts} count rows and ${consistency.totals} all-time count rows differ from a full recomputation`);
 
 // ---------------------------------------------------------------------------------------------
 // 3 and 4. Routes over HTTP, bare SQL through psql
@@ -183,12 +186,12 @@ const bare = {
 };
 
 /**
- * The same figures read from the per-month summaries, by hand in one statement: the moments from
- * reading_summaries merged with Chan et al.'s formula; type-7 quantiles and the MAD from
- * reading_value_counts as cumulative counts (readings are quantised, so the table is exact: the
- * k-th smallest reading is the value whose cumulative count first exceeds k); Tukey and limit
- * counts and the histogram from the counts. This is what the routes read, without HTTP, the
- * token, the transaction or the app's own work. Rates keep no summaries.
+ * The same figures read from the summaries, by hand in one statement: a selection without dates
+ * reads the all-time frequency tables (reading_value_totals), so moments by the two-pass formula
+ * over the counts; type-7 quantiles and the MAD as cumulative counts (readings are quantised, so
+ * the table is exact: the k-th smallest reading is the value whose cumulative count first exceeds
+ * k); Tukey and limit counts and the histogram from the counts. This is what the routes read,
+ * without HTTP, the token, the transaction or the app's own work. Rates keep no summaries.
  */
 const fromSummaries = (familyId: string | null) => {
 	const where = `shop_id = ${lit(ids.shop)} and series_key = ${keyAR('exhaust')}${familyId ? ` and family_id = ${lit(familyId)}` : ''}`;
@@ -197,10 +200,9 @@ const fromSummaries = (familyId: string | null) => {
 	/** Type-7 interpolation between the floor(h)-th and ceil(h)-th smallest. */
 	const type7 = (h: string) => `lo.x + (${h} - floor(${h})) * (hi.x - lo.x)`;
 	return `
-		m as (select family_id, n, mean, m2, min, max from reading_summaries where ${where}),
-		mo as (select family_id, sum(n) as n, sum(n * mean) / sum(n) as mean, min(min) as mn, max(max) as mx from m group by 1),
-		mm as (select mo.*, sqrt((select sum(m.m2 + m.n * (m.mean - mo.mean) ^ 2) from m where m.family_id = mo.family_id) / nullif(mo.n - 1, 0)) as sd from mo),
-		c as (select family_id, value, sum(n) as n from reading_value_counts where ${where} group by 1, 2),
+		c as (select family_id, value, n from reading_value_totals where ${where}),
+		mo as (select family_id, sum(n) as n, sum(n * value) / sum(n) as mean, min(value) as mn, max(value) as mx from c group by 1),
+		mm as (select mo.*, sqrt((select sum(c.n * (c.value - mo.mean) ^ 2) from c where c.family_id = mo.family_id) / nullif(mo.n - 1, 0)) as sd from mo),
 		cum as (select family_id, value as x, n, sum(n) over (partition by family_id order by value) as upto from c),
 		ps as (select mm.family_id, p, (mm.n - 1) * p as h from mm, unnest(array[0.05, 0.25, 0.5, 0.75, 0.95]) p),
 		qs as (select ps.family_id, array_agg(${type7('ps.h')} order by ps.p) as q from ps
@@ -483,7 +485,7 @@ try {
 		inProcessMs: Object.fromEntries(Object.entries(results).map(([k, v]) => [k, v.serviceMs])),
 		loadAverage: loadavg()[0],
 		seed: { ms: Math.round(seedMs), readingsInsertMs: readingsInsertMs },
-		summariesMismatched: consistency.moments + consistency.counts,
+		summariesMismatched: consistency.moments + consistency.counts + consistency.totals,
 		trigger
 	};
 	console.log(JSON.stringify(line));

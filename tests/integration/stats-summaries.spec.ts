@@ -1,4 +1,5 @@
-// The per-month summaries the readings triggers keep (drizzle/0004_stats_summaries.sql) must equal
+// The per-month summaries the readings triggers keep (drizzle/0004_stats_summaries.sql, and the
+// all-time value counts of 0008) must equal
 // a full recomputation over readings after every kind of write: a bulk import, its undo, plain
 // inserts of one and of many rows, updates that move a reading to another value, month or family
 // series, deletes, and a head's cascaded delete. The recomputation here is the textbook SQL
@@ -28,7 +29,10 @@ async function summaries() {
 			where shop_id = ${shopId} order by 1, 2, 3`)) as Row[],
 		counts: (await tx.execute<Row>(raw`
 			select series_key, family_id, month::text, value, n from reading_value_counts
-			where shop_id = ${shopId} order by 1, 2, 3, 4`)) as Row[]
+			where shop_id = ${shopId} order by 1, 2, 3, 4`)) as Row[],
+		totals: (await tx.execute<Row>(raw`
+			select series_key, family_id, value, n from reading_value_totals
+			where shop_id = ${shopId} order by 1, 2, 3`)) as Row[]
 	}));
 }
 
@@ -40,7 +44,10 @@ async function recomputed() {
 			from readings where shop_id = ${shopId} group by 1, 2, 3 order by 1, 2, 3`)) as Row[],
 		counts: (await tx.execute<Row>(raw`
 			select series_key, family_id, date_trunc('month', measured_at at time zone 'UTC')::date::text as month, value, count(*)::int as n
-			from readings where shop_id = ${shopId} group by 1, 2, 3, 4 order by 1, 2, 3, 4`)) as Row[]
+			from readings where shop_id = ${shopId} group by 1, 2, 3, 4 order by 1, 2, 3, 4`)) as Row[],
+		totals: (await tx.execute<Row>(raw`
+			select series_key, family_id, value, count(*)::int as n
+			from readings where shop_id = ${shopId} group by 1, 2, 3 order by 1, 2, 3`)) as Row[]
 	}));
 }
 
@@ -53,6 +60,7 @@ async function recomputed() {
 async function expectConsistent() {
 	const [got, want] = await Promise.all([summaries(), recomputed()]);
 	expect(got.counts).toEqual(want.counts);
+	expect(got.totals).toEqual(want.totals);
 	expect(got.moments.map(({ mean: _a, m2: _b, ...k }) => k)).toEqual(want.moments.map(({ mean: _a, m2: _b, ...k }) => k));
 	got.moments.forEach((g, i) => {
 		const w = want.moments[i];

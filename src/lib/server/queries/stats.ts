@@ -225,23 +225,37 @@ export async function groupData(
 			if (win.months.start) where.push(sql`month >= ${win.months.start}::date`);
 			if (win.months.end) where.push(sql`month < ${win.months.end}::date`);
 			const cond = sql.join(where, sql` and `);
-			const [moments, counts] = await Promise.all([
-				opts.moments === false
-					? ([] as MomentRow[])
-					: conn.execute<MomentRow>(sql`
-							select family_id as "familyId", series_key as key, n, mean, m2, min, max
-							from reading_summaries where ${cond}`),
-				conn.execute<CountRow>(sql`
-					select family_id as "familyId", series_key as key, value, sum(n)::int as n
-					from reading_value_counts where ${cond}
-					group by 1, 2, 3`)
-			]);
-			for (const m of moments) {
-				const s = slot(m.familyId, m.key);
-				const part: Moments = { n: m.n, mean: m.mean, m2: m.m2, min: m.min, max: m.max };
-				s.moments = s.moments ? mergeMoments(s.moments, part) : part;
+			if (win.months.start === null && win.months.end === null) {
+				// No dates at all: the all-time frequency tables, a row per value rather than one per
+				// value and month. Counts are exact, so the moments come from them too (two-pass, below)
+				// and the per-month moments are not read.
+				const counts = await conn.execute<CountRow>(sql`
+					select family_id as "familyId", series_key as key, value, n
+					from reading_value_totals where ${cond}`);
+				for (const c of counts) {
+					const s = slot(c.familyId, c.key);
+					s.counts.set(c.value, c.n);
+					s.edge.set(c.value, c.n);
+				}
+			} else {
+				const [moments, counts] = await Promise.all([
+					opts.moments === false
+						? ([] as MomentRow[])
+						: conn.execute<MomentRow>(sql`
+								select family_id as "familyId", series_key as key, n, mean, m2, min, max
+								from reading_summaries where ${cond}`),
+					conn.execute<CountRow>(sql`
+						select family_id as "familyId", series_key as key, value, sum(n)::int as n
+						from reading_value_counts where ${cond}
+						group by 1, 2, 3`)
+				]);
+				for (const m of moments) {
+					const s = slot(m.familyId, m.key);
+					const part: Moments = { n: m.n, mean: m.mean, m2: m.m2, min: m.min, max: m.max };
+					s.moments = s.moments ? mergeMoments(s.moments, part) : part;
+				}
+				for (const c of counts) slot(c.familyId, c.key).counts.set(c.value, c.n);
 			}
-			for (const c of counts) slot(c.familyId, c.key).counts.set(c.value, c.n);
 		}
 		if (win.edges.length) await fromReadings(win.edges);
 	}
@@ -249,8 +263,8 @@ export async function groupData(
 	const groups: GroupData[] = [];
 	for (const s of acc.values()) {
 		const counts = [...s.counts].filter(([, n]) => n > 0).sort((a, b) => a[0] - b[0]) as ValueCount[];
-		// Readings read directly (the whole selection, or the edges of the date range): their
-		// moments by the two-pass formula, merged into the stored ones (Chan et al.).
+		// Counts read whole (readings read directly, the edges of a date range, or the all-time
+		// tables): their moments by the two-pass formula, merged into any stored ones (Chan et al.).
 		const edge = s.edge.size && opts.moments !== false ? momentsOf(expandCounts([...s.edge].sort((a, b) => a[0] - b[0]))) : null;
 		const moments = s.moments && edge ? mergeMoments(s.moments, edge) : (s.moments ?? edge ?? momentsOf([]));
 		groups.push({ familyId: s.familyId, key: s.key, moments, counts });

@@ -61,3 +61,24 @@ export const readingValueCounts = pgTable(
 	]
 );
 export type ReadingValueCount = typeof readingValueCounts.$inferSelect;
+
+/**
+ * The same frequency tables over all time (no month): what a selection without dates reads,
+ * a row per distinct value instead of one per value and month.
+ */
+export const readingValueTotals = pgTable(
+	'reading_value_totals',
+	{
+		shopId: uuid().notNull(),
+		/** measurement × stage × side, as readings.series_key. */
+		seriesKey: smallint().notNull(),
+		familyId: uuid().notNull(),
+		value: doublePrecision().notNull(),
+		n: integer().notNull()
+	},
+	(t) => [
+		primaryKey({ name: 'reading_value_totals_pkey', columns: [t.shopId, t.seriesKey, t.familyId, t.value] }),
+		check('reading_value_totals_n_positive', sql`${t.n} > 0`)
+	]
+);
+export type ReadingValueTotal = typeof readingValueTotals.$inferSelect;
