@@ -3,6 +3,7 @@
 // blue and vermillion, told apart with the common colour-vision deficiencies. The same values
 // are CSS variables in app.css (--color-intake, --color-exhaust).
 import { MEASUREMENT_INFO, UNIT_LABEL, type Measurement, type Side, type Stage } from './measurements';
+import { count } from './format';
 
 export const SIDE_COLOUR: Record<Side, string> = { intake: '#0072b2', exhaust: '#d55e00' };
 /** Stages: as-received light, final dark, in one hue (told apart by lightness, also in grey print). */
@@ -46,12 +47,5 @@ export function fmtPct(x: number | null | undefined, decimals = 1): string {
 	if (x === null || x === undefined || !Number.isFinite(x)) return '–';
 	return `${(x * 100).toFixed(decimals)} %`;
 }
-export function fmtCount(x: number): string {
-	return x.toLocaleString('en-US');
-}
-/** A p-value in words a shop owner can read. */
-export function fmtP(p: number | null): string {
-	if (p === null) return '–';
-	if (p < 0.001) return 'p < 0.001';
-	return `p = ${p.toFixed(3)}`;
-}
+/** Counts as $lib/format writes them ("12,345"); p-values: `pValue` there. */
+export const fmtCount = count;
