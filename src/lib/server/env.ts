@@ -17,6 +17,8 @@ const schema = z.object({
 	/** Failed sign-ins allowed per client address in 15 minutes (per e-mail address: 10). */
 	LAPMARK_SIGNIN_CLIENT_LIMIT: z.coerce.number().int().positive().default(50),
 	LAPMARK_DEMO: z.enum(['0', '1']).default('0'),
+	/** How often each server looks for imports that died (no heartbeat for 30 s), in ms. */
+	LAPMARK_IMPORT_WATCH_MS: z.coerce.number().int().min(100, 'LAPMARK_IMPORT_WATCH_MS must be at least 100 (ms)').default(10_000),
 	ORIGIN: z.string().optional()
 });
 
