@@ -383,7 +383,7 @@ export async function runImport(sql: postgres.Sql, body: AsyncIterable<Uint8Arra
 			returning id`);
 		batchId = b.id;
 	}
-	const heartbeat = batchId ? startHeartbeat(sql, batchId) : null;
+	const heartbeat = batchId ? startHeartbeat(sql, opts.shopId, batchId) : null;
 
 	try {
 		const outcome = await inShop(sql, opts.shopId, async (t) => {
@@ -501,7 +501,7 @@ export async function runImport(sql: postgres.Sql, body: AsyncIterable<Uint8Arra
 						// Staged rows wait in a larger buffer while readings go straight in, so that the
 						// connection seldom switches from one COPY to the other.
 						if (staged.length > (direct ? 1 << 22 : 1 << 18)) await flushStaged();
-						if (batchId && rows % 25_000 === 0) void sql`update import_batches set progress_rows = ${rows}, heartbeat_at = now() where id = ${batchId}`.catch(() => {});
+						if (batchId && rows % 25_000 === 0) touchBatch(sql, opts.shopId, batchId, rows);
 					}
 				}
 				if (straight) await flushStraight();
@@ -553,12 +553,21 @@ export async function runImport(sql: postgres.Sql, body: AsyncIterable<Uint8Arra
 export const HEARTBEAT_SECONDS = 5;
 export const STALE_SECONDS = 30;
 
-/** Renews the batch's heartbeat from outside the import's transaction (whose writes nobody sees
- * before it commits) until cleared. A renewal that fails is only late: the next one may succeed. */
-function startHeartbeat(sql: postgres.Sql, batchId: string) {
-	const timer = setInterval(() => {
-		void sql`update import_batches set heartbeat_at = now() where id = ${batchId} and status = 'running'`.catch(() => {});
-	}, HEARTBEAT_SECONDS * 1000);
+/** Renews the batch's heartbeat (and its rows read so far) from outside the import's transaction,
+ * whose writes nobody sees before it commits; in the shop's scope, or row-level security hides the
+ * row. A renewal that fails is only late: the next one may succeed. */
+function touchBatch(sql: postgres.Sql, shopId: string, batchId: string, progressRows?: number) {
+	sql
+		.begin(async (t) => {
+			await t`select set_config('lapmark.shop_id', ${shopId}, true)`;
+			if (progressRows === undefined) await t`update import_batches set heartbeat_at = now() where id = ${batchId} and status = 'running'`;
+			else await t`update import_batches set heartbeat_at = now(), progress_rows = ${progressRows} where id = ${batchId} and status = 'running'`;
+		})
+		.catch(() => {});
+}
+
+function startHeartbeat(sql: postgres.Sql, shopId: string, batchId: string) {
+	const timer = setInterval(() => touchBatch(sql, shopId, batchId), HEARTBEAT_SECONDS * 1000);
 	timer.unref();
 	return timer;
 }
