@@ -3,6 +3,7 @@
 // with no page opened and no request made.
 import { spawn } from 'node:child_process';
 import { once } from 'node:events';
+import type postgres from 'postgres';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import { newApiToken, sha256Hex } from '../../src/lib/server/auth/tokens';
 import { withSystem } from '../../src/lib/server/db/scope';
@@ -23,7 +24,7 @@ beforeAll(async () => {
 });
 afterAll(() => sql.end());
 
-async function inShop<T>(work: (t: Parameters<Parameters<typeof sql.begin>[0]>[0]) => Promise<T>) {
+async function inShop<T>(work: (t: postgres.TransactionSql) => Promise<T>) {
 	return sql.begin(async (t) => {
 		await t`select set_config('lapmark.shop_id', ${shopId}, true)`;
 		return work(t);
