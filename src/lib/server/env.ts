@@ -9,7 +9,7 @@ const schema = z.object({
 	/** SMTP server for outgoing mail; the project's local fake in development and tests. */
 	SMTP_URL: z.string().default('smtp://127.0.0.1:2525'),
 	MAIL_FROM: z.string().default('Lapmark <no-reply@lapmark.example>'),
-	/** Folder where the local fake mail server keeps what it receives (enables /dev/mail). */
+	/** Folder where the local fake mail server keeps what it receives (with LAPMARK_DEMO=1 or in dev, enables /dev/mail). */
 	LAPMARK_MAIL_DIR: z.string().optional(),
 	/** Largest CSV upload accepted, in megabytes. */
 	LAPMARK_UPLOAD_LIMIT_MB: z.coerce.number().positive().default(200),
