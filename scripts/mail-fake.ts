@@ -30,6 +30,11 @@ const server = new SMTPServer({
 				const receivedAt = new Date().toISOString();
 				const id = `${receivedAt.replace(/[:.]/g, '-')}-${process.pid}-${++counter}`;
 				const to = session.envelope.rcptTo.map((r) => r.address);
+				// Lapmark's outbox names the kind of message and its shop, for the reader's rules.
+				const header = (name: string) => {
+					const v = parsed.headers.get(name);
+					return typeof v === 'string' && /^[\w-]{1,64}$/.test(v) ? v : undefined;
+				};
 				const message = {
 					id,
 					receivedAt,
@@ -37,7 +42,9 @@ const server = new SMTPServer({
 					to,
 					subject: parsed.subject ?? '',
 					text: parsed.text ?? '',
-					html: typeof parsed.html === 'string' ? parsed.html : ''
+					html: typeof parsed.html === 'string' ? parsed.html : '',
+					kind: header('x-lapmark-kind'),
+					shopId: header('x-lapmark-shop')
 				};
 				writeFileSync(join(dir, `${id}.eml`), raw);
 				// Written last and whole: a reader never sees half a message.

@@ -5,11 +5,17 @@ import { POLICY, operationOf } from '$lib/server/auth/access';
 import { actorFromBearer, actorFromSession } from '$lib/server/auth/actor';
 import { requireRole, requireUser } from '$lib/server/auth/guards';
 import { db, sql } from '$lib/server/db';
+import { startImportWatch, stopImportWatch } from '$lib/server/import';
 import { startMailRetries } from '$lib/server/mail';
 import { warmOverviews } from '$lib/server/queries/overview';
 import { building } from '$app/environment';
 
 startMailRetries();
+// Imports whose server died are marked failed by whichever server looks first.
+if (!building) {
+	startImportWatch();
+	process.on('sveltekit:shutdown', stopImportWatch);
+}
 // The overview's slowest figure, worked out once per shop in the background after a start.
 if (!building) setTimeout(() => void warmOverviews(db), 1000).unref();
 

@@ -188,8 +188,10 @@ describe('POST /api/v1/imports', () => {
 					await t`select set_config('lapmark.shop_id', ${shopId}, true)`;
 					return t<{ status: string }[]>`select status from import_batches where shop_id = ${shopId} and file_name = 'killed.csv'`;
 				});
-				expect(b.status).toBe('running'); // the dead server could not mark it
-				if ((await reapDeadImports(sql, 0)) > 0) break;
+				if (i === 0) expect(b.status).toBe('running'); // the dead server could not mark it
+				if (b.status !== 'running') break;
+				// Counts other shops' dead batches too: this one's status above says when it is done.
+				await reapDeadImports(sql, 0);
 				await new Promise((r) => setTimeout(r, 200));
 			}
 			expect(readings).toBe(0);

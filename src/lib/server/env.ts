@@ -9,7 +9,7 @@ const schema = z.object({
 	/** SMTP server for outgoing mail; the project's local fake in development and tests. */
 	SMTP_URL: z.string().default('smtp://127.0.0.1:2525'),
 	MAIL_FROM: z.string().default('Lapmark <no-reply@lapmark.example>'),
-	/** Folder where the local fake mail server keeps what it receives (enables /dev/mail). */
+	/** Folder where the local fake mail server keeps what it receives (with LAPMARK_DEMO=1 or in dev, enables /dev/mail). */
 	LAPMARK_MAIL_DIR: z.string().optional(),
 	/** Largest CSV upload accepted, in megabytes. */
 	LAPMARK_UPLOAD_LIMIT_MB: z.coerce.number().positive().default(200),
@@ -17,6 +17,8 @@ const schema = z.object({
 	/** Failed sign-ins allowed per client address in 15 minutes (per e-mail address: 10). */
 	LAPMARK_SIGNIN_CLIENT_LIMIT: z.coerce.number().int().positive().default(50),
 	LAPMARK_DEMO: z.enum(['0', '1']).default('0'),
+	/** How often each server looks for imports that died (no heartbeat for 30 s), in ms. */
+	LAPMARK_IMPORT_WATCH_MS: z.coerce.number().int().min(100, 'LAPMARK_IMPORT_WATCH_MS must be at least 100 (ms)').default(10_000),
 	ORIGIN: z.string().optional()
 });
 

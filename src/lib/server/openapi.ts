@@ -45,7 +45,7 @@ const PARAMETER_TEXT: Record<string, string> = {
 	format: 'csv or json (default json). Leave out `page` to export every row.',
 	layout: 'wide (one column per measurement) or long (one row per reading); guessed from the header when left out.',
 	dryRun: 'Check the file without storing anything (1 or true).',
-	onReject: 'abort (default: a bad row stops the import) or skip (store the good rows, report the bad).',
+	onReject: 'abort (a rejected row stops the import: nothing is stored) or skip (store the good rows, report the rejected ones). Left out: the shop’s setting `onReject`, shown on the Imports page (`abort` for a shop that has none); the answer’s `onReject` and `onRejectFrom` say which applied.',
 	fileName: 'Name to show in the import list.',
 	clientRef: 'Your own reference (8–64 letters, digits, - or _), to find an import that is still running.',
 	mapping: 'JSON object of file header → Lapmark column name, for headers the import does not recognise.'
@@ -281,11 +281,11 @@ export const OPENAPI = {
 				example: 'layout=wide&onReject=skip&fileName=bench-week-12.csv',
 				exampleBody: { type: 'text/csv', data: '@readings.csv' },
 				responses: {
-					'201': jsonBody({ type: 'object', properties: { batchId: { type: 'string' }, accepted: { type: 'integer' }, rejected: { type: 'integer' }, readings: { type: 'integer' }, rejects: { type: 'array' } } }, 'Stored: counts and the first rejected rows.'),
+					'201': jsonBody({ type: 'object', properties: { batchId: { type: 'string' }, accepted: { type: 'integer' }, rejected: { type: 'integer' }, readings: { type: 'integer' }, rejects: { type: 'array' }, onReject: { enum: ['abort', 'skip'], description: 'What was done with rejected rows.' }, onRejectFrom: { enum: ['request', 'shop setting'], description: 'Whether that came from the request or the shop’s setting.' } } }, 'Stored: counts and the first rejected rows.'),
 					'200': jsonBody({ type: 'object' }, 'A dry run, or a file already imported (duplicateOf).'),
 					'413': problem('The file is larger than the upload limit.'),
 					'415': problem('Not sent as text/csv.'),
-					'422': problem('Rows were refused and onReject=abort: nothing was stored.')
+					'422': problem('Rows were refused and onReject was abort (asked for, or the shop’s setting): nothing was stored.')
 				}
 			})
 		},

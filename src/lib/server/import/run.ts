@@ -383,6 +383,7 @@ export async function runImport(sql: postgres.Sql, body: AsyncIterable<Uint8Arra
 			returning id`);
 		batchId = b.id;
 	}
+	const heartbeat = batchId ? startHeartbeat(sql, opts.shopId, batchId) : null;
 
 	try {
 		const outcome = await inShop(sql, opts.shopId, async (t) => {
@@ -500,7 +501,7 @@ export async function runImport(sql: postgres.Sql, body: AsyncIterable<Uint8Arra
 						// Staged rows wait in a larger buffer while readings go straight in, so that the
 						// connection seldom switches from one COPY to the other.
 						if (staged.length > (direct ? 1 << 22 : 1 << 18)) await flushStaged();
-						if (batchId && rows % 25_000 === 0) void sql`update import_batches set progress_rows = ${rows} where id = ${batchId}`.catch(() => {});
+						if (batchId && rows % 25_000 === 0) touchBatch(sql, opts.shopId, batchId, rows);
 					}
 				}
 				if (straight) await flushStraight();
@@ -542,7 +543,33 @@ export async function runImport(sql: postgres.Sql, body: AsyncIterable<Uint8Arra
 					: `The import failed: ${e instanceof Error ? e.message : String(e)}. Nothing was imported.`;
 		await markFailed(sql, opts.shopId, batchId, message).catch(() => {});
 		throw e instanceof ImportInputError ? e : isAbort(e) ? new ImportInputError(400, message) : e;
+	} finally {
+		if (heartbeat) clearInterval(heartbeat);
 	}
+}
+
+/** How often a running import renews its batch's heartbeat, and after how long without one the
+ * watch (reapDeadImports) counts the import as dead. */
+export const HEARTBEAT_SECONDS = 5;
+export const STALE_SECONDS = 30;
+
+/** Renews the batch's heartbeat (and its rows read so far) from outside the import's transaction,
+ * whose writes nobody sees before it commits; in the shop's scope, or row-level security hides the
+ * row. A renewal that fails is only late: the next one may succeed. */
+function touchBatch(sql: postgres.Sql, shopId: string, batchId: string, progressRows?: number) {
+	sql
+		.begin(async (t) => {
+			await t`select set_config('lapmark.shop_id', ${shopId}, true)`;
+			if (progressRows === undefined) await t`update import_batches set heartbeat_at = now() where id = ${batchId} and status = 'running'`;
+			else await t`update import_batches set heartbeat_at = now(), progress_rows = ${progressRows} where id = ${batchId} and status = 'running'`;
+		})
+		.catch(() => {});
+}
+
+function startHeartbeat(sql: postgres.Sql, shopId: string, batchId: string) {
+	const timer = setInterval(() => touchBatch(sql, shopId, batchId), HEARTBEAT_SECONDS * 1000);
+	timer.unref();
+	return timer;
 }
 
 class DryRunOutcome extends Error {
@@ -928,12 +955,17 @@ async function finish(t: postgres.TransactionSql, opts: ImportOptions, info: Fin
 	return { status: 201, result: base };
 }
 
-/** Marks batches whose import died (server killed, database restarted) as failed. */
-export async function reapDeadImports(sql: postgres.Sql, graceSeconds = 60): Promise<number> {
+/**
+ * Marks batches whose import died (server killed, database restarted) as failed: running, no
+ * heartbeat for `staleSeconds`, and the import's lock free (an import whose transaction is still
+ * open in the database holds it, however late its heartbeat). Every server runs this on a timer
+ * (startImportWatch); it looks across shops.
+ */
+export async function reapDeadImports(sql: postgres.Sql, staleSeconds = STALE_SECONDS): Promise<number> {
 	const stale = await sql.begin(async (t) => {
 		await t`select set_config('lapmark.system', 'on', true)`;
 		return t<{ id: string; shop_id: string }[]>`
-			select id, shop_id from import_batches where status = 'running' and created_at < now() - make_interval(secs => ${graceSeconds})`;
+			select id, shop_id from import_batches where status = 'running' and heartbeat_at < now() - make_interval(secs => ${staleSeconds})`;
 	});
 	let reaped = 0;
 	for (const b of stale) {
@@ -944,7 +976,7 @@ export async function reapDeadImports(sql: postgres.Sql, graceSeconds = 60): Pro
 			const r = await t`
 				update import_batches set status = 'failed', finished_at = now(),
 					error = 'The import stopped before it finished (the server or the database restarted). Nothing from it was stored.'
-				where id = ${b.id} and status = 'running'`;
+				where id = ${b.id} and status = 'running' and heartbeat_at < now() - make_interval(secs => ${staleSeconds})`;
 			return r.count;
 		});
 		reaped += done;

@@ -1,6 +1,6 @@
 import { and, asc, desc, eq, sql } from 'drizzle-orm';
 import type { Conn } from '../db/scope';
-import { importBatches, importRejects, users } from '../db/schema';
+import { importBatches, importRejects, shops, users } from '../db/schema';
 
 const batchColumns = {
 	id: importBatches.id,
@@ -70,4 +70,13 @@ export async function undoBatch(conn: Conn, shopId: string, batchId: string) {
 			and not exists (select 1 from heads c where c.comeback_of = h.id)`);
 	await conn.execute(sql`update import_batches set status = 'undone', finished_at = now() where id = ${batchId}`);
 	return { ok: true as const, readingsRemoved: removed.count, headsRemoved: heads.count };
+}
+
+export type OnReject = 'abort' | 'skip';
+
+/** What an import does with rejected rows when the upload does not say: the shop's setting
+ * `onReject` (shops.settings), `abort` for a shop without one. */
+export async function shopOnReject(conn: Conn, shopId: string): Promise<OnReject> {
+	const [row] = await conn.select({ settings: shops.settings }).from(shops).where(eq(shops.id, shopId)).limit(1);
+	return row?.settings?.onReject === 'skip' ? 'skip' : 'abort';
 }

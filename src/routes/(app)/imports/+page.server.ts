@@ -1,23 +1,21 @@
 import { error, fail } from '@sveltejs/kit';
 import { idSchema } from '$lib/schemas/members';
 import { requireRole } from '$lib/server/auth/guards';
-import { db, sql } from '$lib/server/db';
+import { db } from '$lib/server/db';
 import { withShop } from '$lib/server/db/scope';
 import { uploadLimitBytes } from '$lib/server/env';
-import { reapDeadImports } from '$lib/server/import';
 import { audit } from '$lib/server/queries/audit';
 import { listFamilies } from '$lib/server/queries/families';
-import { listBatches, undoBatch } from '$lib/server/queries/imports';
+import { listBatches, shopOnReject, undoBatch } from '$lib/server/queries/imports';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
 	const actor = requireRole(event, 'machinist');
-	// A batch left running by a server that died shows as failed, not as running forever.
-	await reapDeadImports(sql).catch(() => 0);
 	return withShop(db, actor.shopId, async (tx) => ({
 		batches: await listBatches(tx, actor.shopId, { limit: 200 }),
 		families: (await listFamilies(tx, actor.shopId)).map((f) => ({ code: f.code, cylinders: f.cylinders, intakeValves: f.intakeValves, exhaustValves: f.exhaustValves })),
 		canUndo: actor.role === 'owner' || actor.role === 'engineer',
+		onRejectDefault: await shopOnReject(tx, actor.shopId),
 		limitMb: Math.round(uploadLimitBytes / 1024 / 1024)
 	}));
 };

@@ -30,13 +30,17 @@ export const importBatches = pgTable(
 		error: text(),
 		createdBy: text().references(() => users.id, { onDelete: 'set null' }),
 		createdAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
-		finishedAt: timestamp({ withTimezone: true })
+		finishedAt: timestamp({ withTimezone: true }),
+		/** Renewed every few seconds while the import runs (from outside its transaction); a running
+		 * batch whose heartbeat stopped belongs to an import that died, and is marked failed. */
+		heartbeatAt: timestamp({ withTimezone: true }).notNull().defaultNow()
 	},
 	(t) => [
 		unique('import_batches_shop_id_key').on(t.shopId, t.id),
 		// One committed batch per file content: a second upload of the same bytes is refused.
 		uniqueIndex('import_batches_committed_hash_key').on(t.shopId, t.contentHash).where(sql`${t.status} = 'committed'`),
 		index('import_batches_shop_created_idx').on(t.shopId, t.createdAt),
+		index('import_batches_running_idx').on(t.heartbeatAt).where(sql`${t.status} = 'running'`),
 		check('import_batches_layout', sql`${t.layout} in ('wide', 'long')`),
 		check('import_batches_on_reject', sql`${t.onReject} in ('abort', 'skip')`),
 		check(

@@ -1,13 +1,11 @@
-import { error } from '@sveltejs/kit';
 import { requireRole } from '$lib/server/auth/guards';
-import { mailFakeDir } from '$lib/server/env';
-import { listFakeMail } from '$lib/server/mail/fake-inbox';
+import { readableMail } from '$lib/server/mail/reader';
 import type { PageServerLoad } from './$types';
 
-// Only while the local fake mail server is in use; with a real SMTP server there is no inbox here.
+// Only with the local fake mail server in demo or development mode (404 otherwise), and only the
+// mail the owner may read: their own, and their current shop's to its own people.
 export const load: PageServerLoad = async (event) => {
-	requireRole(event, 'owner');
-	if (!mailFakeDir) error(404, 'Not found');
-	const messages = await listFakeMail(mailFakeDir);
+	const actor = requireRole(event, 'owner');
+	const messages = await readableMail(actor);
 	return { messages: messages.map(({ id, receivedAt, to, subject }) => ({ id, receivedAt, to, subject })) };
 };

@@ -62,6 +62,8 @@ export const POST: RequestHandler = async (event) => {
 			seconds: Math.round(r.seconds * 1000) / 1000,
 			timings: r.timings,
 			path: r.path,
+			onReject: outcome.onReject,
+			onRejectFrom: outcome.onRejectFrom,
 			...('message' in outcome ? { message: outcome.message } : {})
 		};
 		return json(body, { status: outcome.status });

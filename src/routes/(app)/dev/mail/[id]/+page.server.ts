@@ -1,13 +1,10 @@
-import { error } from '@sveltejs/kit';
 import { requireRole } from '$lib/server/auth/guards';
-import { mailFakeDir } from '$lib/server/env';
-import { linksIn, readFakeMail } from '$lib/server/mail/fake-inbox';
+import { linksIn } from '$lib/server/mail/fake-inbox';
+import { readableMessage } from '$lib/server/mail/reader';
 import type { PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
-	requireRole(event, 'owner');
-	if (!mailFakeDir) error(404, 'Not found');
-	const message = await readFakeMail(mailFakeDir, event.params.id);
-	if (!message) error(404, 'No such message.');
+	const actor = requireRole(event, 'owner');
+	const message = await readableMessage(actor, event.params.id);
 	return { message: { ...message, html: undefined }, links: linksIn(message.text) };
 };

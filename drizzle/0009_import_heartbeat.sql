@@ -1,0 +1,2 @@
+ALTER TABLE "import_batches" ADD COLUMN "heartbeat_at" timestamp with time zone DEFAULT now() NOT NULL;--> statement-breakpoint
+CREATE INDEX "import_batches_running_idx" ON "import_batches" USING btree ("heartbeat_at") WHERE "import_batches"."status" = 'running';
