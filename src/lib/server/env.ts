@@ -1,5 +1,5 @@
 // The only reader of the private environment. Validated once, when first imported.
-import { building } from '$app/environment';
+import { building, dev } from '$app/environment';
 import { env as raw } from '$env/dynamic/private';
 import { z } from 'zod';
 
@@ -17,7 +17,7 @@ const schema = z.object({
 	/** Failed sign-ins allowed per client address in 15 minutes (per e-mail address: 10). */
 	LAPMARK_SIGNIN_CLIENT_LIMIT: z.coerce.number().int().positive().default(50),
 	LAPMARK_DEMO: z.enum(['0', '1']).default('0'),
-	ORIGIN: z.string().optional()
+	ORIGIN: z.string().url({ message: 'ORIGIN must be the public URL, e.g. https://lapmark.example.com' }).optional()
 });
 
 // While building, SvelteKit loads server modules to analyse them; nothing connects then.
@@ -33,3 +33,11 @@ export const env = parsed.data;
 export const uploadLimitBytes = Math.round(env.LAPMARK_UPLOAD_LIMIT_MB * 1024 * 1024);
 export const demoMode = env.LAPMARK_DEMO === '1';
 export const mailFakeDir = env.LAPMARK_MAIL_DIR ?? null;
+
+/**
+ * The public origin (scheme, host, port) of this app: ORIGIN, or in development Vite's
+ * localhost address. Every absolute URL Lapmark builds (sign-in links, password reset and
+ * invitation links, Auth.js redirects) starts with it; the request's Host, X-Forwarded-Host and
+ * X-Forwarded-Proto headers are never used for that (see pinPublicOrigin in src/auth.ts).
+ */
+export const publicOrigin = new URL(env.ORIGIN || `http://localhost:${raw.PORT || (dev ? 5173 : 3000)}`).origin;

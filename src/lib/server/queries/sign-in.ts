@@ -14,8 +14,17 @@ export async function failedAttemptsSince(conn: Conn, key: { email?: string; cli
 	return row.n;
 }
 
-export async function recordAttempt(conn: Conn, email: string, client: string, succeeded: boolean) {
-	await conn.insert(signInAttempts).values({ email, client, succeeded: succeeded ? 'yes' : 'no' });
+export async function recordAttempt(conn: Conn, email: string, client: string, succeeded: boolean): Promise<string> {
+	const [row] = await conn
+		.insert(signInAttempts)
+		.values({ email, client, succeeded: succeeded ? 'yes' : 'no' })
+		.returning({ id: signInAttempts.id });
+	return row.id;
+}
+
+/** An attempt recorded as failed before the password was checked turned out to succeed. */
+export async function settleAttempt(conn: Conn, attemptId: string): Promise<void> {
+	await conn.update(signInAttempts).set({ succeeded: 'yes' }).where(eq(signInAttempts.id, attemptId));
 }
 
 export async function userExists(conn: Conn, email: string): Promise<boolean> {

@@ -1,0 +1,84 @@
+// Mail asked for on a public form whose answer must not tell whether the address has an
+// account (forgot password). The form stores one request row — the same work for every
+// address — and answers; the work that depends on the address (look it up, make a reset link,
+// queue the mail in the outbox) runs right after the answer, and again from a timer for
+// requests a stopped server left behind. Rows are claimed with FOR UPDATE SKIP LOCKED, so
+// several servers never make two links for one request.
+import { sql } from 'drizzle-orm';
+import { building } from '$app/environment';
+import { db } from '../db';
+import { authMailRequests } from '../db/schema';
+import { publicOrigin } from '../env';
+import { deliverQueued } from '../mail';
+import { queueReset } from '../services/password-reset';
+
+/** Stores a forgot-password request for `email` (known or not). */
+export async function requestPasswordResetMail(email: string): Promise<void> {
+	await db.insert(authMailRequests).values({ kind: 'password_reset', email });
+	kick();
+}
+
+/** Turns pending requests into queued mail; returns how many requests were handled. */
+export async function processAuthMailRequests(limit = 20): Promise<number> {
+	const { handled, mailIds } = await db.transaction(async (tx) => {
+		const rows = await tx.execute<{ id: string; kind: string; email: string; stale: boolean }>(sql`
+			select id, kind, email, created_at < now() - interval '1 hour' as stale from auth_mail_requests
+			where done_at is null order by created_at limit ${limit}
+			for update skip locked`);
+		const mailIds: string[] = [];
+		for (const r of rows) {
+			// Requests older than the link's own lifetime are dropped, not mailed late.
+			if (r.stale) continue;
+			const id = await queueReset(tx, r.email, publicOrigin);
+			if (id) mailIds.push(id);
+		}
+		if (rows.length) {
+			await tx.execute(sql`update auth_mail_requests set done_at = now() where id = any(${rows.map((r) => r.id)}::uuid[])`);
+		}
+		return { handled: rows.length, mailIds };
+	});
+	if (mailIds.length) await deliverQueued(mailIds);
+	return handled;
+}
+
+let running: Promise<void> | null = null;
+let again = false;
+
+/** Runs the requests soon, after the current answer has gone out; never two runs at once. */
+function kick() {
+	if (running) {
+		again = true;
+		return;
+	}
+	running = new Promise<void>((resolve) => setImmediate(resolve))
+		.then(async () => {
+			do {
+				again = false;
+				while ((await processAuthMailRequests()) > 0);
+			} while (again);
+		})
+		.catch((e) => console.error('[auth mail] requests failed; retried by the timer', e))
+		.finally(() => {
+			running = null;
+		});
+}
+
+let timer: ReturnType<typeof setInterval> | null = null;
+
+/** Started once by src/auth.ts: picks up requests a stopped server left, and every hour clears
+ * sessions and sign-in attempts long past any use. */
+export function startAuthMailWork(everyMs = 10_000) {
+	if (timer || building) return;
+	let ticks = 0;
+	timer = setInterval(() => {
+		kick();
+		if (ticks++ % 360 === 0) void sweep().catch((e) => console.error('[auth] sweep failed', e));
+	}, everyMs);
+	timer.unref();
+}
+
+async function sweep() {
+	await db.execute(sql`delete from user_sessions where expires_at < now() - interval '1 day'`);
+	await db.execute(sql`delete from sign_in_attempts where at < now() - interval '1 day'`);
+	await db.execute(sql`delete from auth_mail_requests where done_at < now() - interval '1 day'`);
+}
