@@ -4,7 +4,7 @@
 // queue the mail in the outbox) runs right after the answer, and again from a timer for
 // requests a stopped server left behind. Rows are claimed with FOR UPDATE SKIP LOCKED, so
 // several servers never make two links for one request.
-import { sql } from 'drizzle-orm';
+import { inArray, sql } from 'drizzle-orm';
 import { building } from '$app/environment';
 import { db } from '../db';
 import { authMailRequests } from '../db/schema';
@@ -33,7 +33,7 @@ export async function processAuthMailRequests(limit = 20): Promise<number> {
 			if (id) mailIds.push(id);
 		}
 		if (rows.length) {
-			await tx.execute(sql`update auth_mail_requests set done_at = now() where id = any(${rows.map((r) => r.id)}::uuid[])`);
+			await tx.update(authMailRequests).set({ doneAt: sql`now()` }).where(inArray(authMailRequests.id, rows.map((r) => r.id)));
 		}
 		return { handled: rows.length, mailIds };
 	});
