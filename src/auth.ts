@@ -23,7 +23,7 @@ import { accounts, sessions, users, verificationTokens } from '$lib/server/db/sc
 import { env, publicOrigin } from '$lib/server/env';
 import { NO_ACCOUNT_CREATION } from '$lib/server/auth/accounts';
 import { startAuthMailWork } from '$lib/server/auth/mail-requests';
-import { claimAttempt } from '$lib/server/auth/rate-limit';
+import { claimAttempt, noteAttempt } from '$lib/server/auth/rate-limit';
 import { SESSION_MAX_DAYS, endSession, startSession } from '$lib/server/auth/sessions';
 import { deliverQueued, queueMail } from '$lib/server/mail';
 import { signInLinkMail } from '$lib/server/mail/messages';
@@ -106,10 +106,12 @@ function config(event: RequestEvent): SvelteKitAuthConfig {
 				// Following a link: only to an account that exists (the adapter creates none).
 				return userExists(db, address);
 			},
-			async jwt({ token, user }) {
+			async jwt({ token, user, account }) {
 				if (user?.id) {
 					token.sub = user.id;
 					token.sid = await startSession(db, user.id);
+					// A link that worked is a success for the rate limit, as a right password is.
+					if (account?.provider === 'nodemailer' && user.email) await noteAttempt(user.email.toLowerCase(), event.getClientAddress(), true);
 				}
 				return token;
 			},
@@ -131,6 +133,9 @@ function config(event: RequestEvent): SvelteKitAuthConfig {
 const auth = SvelteKitAuth(async (event) => config(event));
 
 export const signOut = auth.signOut;
+/** Auth.js's own helper, kept for links (provider `nodemailer`). For a password sign-in use
+ * signInVerified(): `authorize` accepts only a person checked in the same request. */
+export const signIn = auth.signIn;
 
 /** Auth.js's handle, after pinning the request's host headers to ORIGIN. */
 export const handle: Handle = ({ event, resolve }) => {
