@@ -5,8 +5,9 @@
 //
 // The rules hold inside Auth.js itself, not only in Lapmark's forms, because its endpoints
 // (`POST /auth/signin/nodemailer` …) can be called directly:
-// - links go only to existing accounts and count against the sign-in rate limit (signIn
-//   callback, `email.verificationRequest`); the answer is the same either way;
+// - a request for a link is answered in the signIn callback (`email.verificationRequest`), the
+//   same for every address: counted against the sign-in rate limit and stored; the link is made
+//   and mailed after the answer, only to an existing account (auth/mail-requests.ts);
 // - the adapter never creates an account (accounts come from an invitation or the shop sign-up,
 //   auth/accounts.ts);
 // - a password is checked once, by the sign-in page's action; `authorize` only accepts the
@@ -16,17 +17,15 @@ import { DrizzleAdapter } from '@auth/drizzle-adapter';
 import { SvelteKitAuth, type SvelteKitAuthConfig } from '@auth/sveltekit';
 import Credentials from '@auth/sveltekit/providers/credentials';
 import Nodemailer from '@auth/sveltekit/providers/nodemailer';
-import { isRedirect, redirect, type Handle, type RequestEvent } from '@sveltejs/kit';
+import { redirect, type Handle, type RequestEvent } from '@sveltejs/kit';
 import type { Adapter } from '@auth/core/adapters';
 import { db } from '$lib/server/db';
 import { accounts, sessions, users, verificationTokens } from '$lib/server/db/schema';
 import { env, publicOrigin } from '$lib/server/env';
 import { NO_ACCOUNT_CREATION } from '$lib/server/auth/accounts';
-import { startAuthMailWork } from '$lib/server/auth/mail-requests';
+import { LINK_MINUTES, requestSignInLinkMail, startAuthMailWork } from '$lib/server/auth/mail-requests';
 import { claimAttempt, noteAttempt } from '$lib/server/auth/rate-limit';
 import { SESSION_MAX_DAYS, endSession, startSession } from '$lib/server/auth/sessions';
-import { deliverQueued, queueMail } from '$lib/server/mail';
-import { signInLinkMail } from '$lib/server/mail/messages';
 import { userExists } from '$lib/server/queries/sign-in';
 
 const origin = new URL(publicOrigin);
@@ -83,12 +82,11 @@ function config(event: RequestEvent): SvelteKitAuthConfig {
 			Nodemailer({
 				server: env.SMTP_URL,
 				from: env.MAIL_FROM,
-				maxAge: 60 * 60,
-				// Queued in the outbox and sent after the answer, so the answer takes as long for
-				// an address that gets a link as for one that does not.
-				async sendVerificationRequest({ identifier, url }) {
-					const id = await queueMail(db, { to: identifier, ...signInLinkMail(url) });
-					setImmediate(() => void deliverQueued([id]).catch((e) => console.error('[mail] sign-in link', e)));
+				maxAge: LINK_MINUTES * 60,
+				// Never reached: the signIn callback answers every link request itself, and the link
+				// is made and mailed after the answer (auth/mail-requests.ts).
+				sendVerificationRequest() {
+					throw new Error('Sign-in links are made by auth/mail-requests.ts.');
 				}
 			})
 		],
@@ -97,11 +95,11 @@ function config(event: RequestEvent): SvelteKitAuthConfig {
 				if (account?.provider !== 'nodemailer') return true;
 				const address = String(user.email ?? '').toLowerCase();
 				if (email?.verificationRequest) {
-					// Every request for a link counts, known address or not; beyond the limit, or for
-					// an address without an account, no link is made and the answer is the same.
-					const claim = await claimAttempt(address, event.getClientAddress());
-					if (claim.blocked || !(await userExists(db, address))) return VERIFY_REQUEST;
-					return true;
+					// Answered here, the same for every address: the request is counted and stored,
+					// and the link is made (for an existing account, within the limits) after the
+					// answer. Auth.js itself never makes or sends one.
+					await askForSignInLink(address, event.getClientAddress(), '/');
+					return VERIFY_REQUEST;
 				}
 				// Following a link: only to an account that exists (the adapter creates none).
 				return userExists(db, address);
@@ -165,18 +163,22 @@ export async function signInVerified(event: RequestEvent, user: { id: string; em
 }
 
 /**
- * Asks Auth.js for a sign-in link to `email` (the provider decides whether one is sent) and
- * answers as it does for every address: 303 to the check-your-mail page.
+ * Asks for a sign-in link to `email` and answers as for every address: 303 to the
+ * check-your-mail page.
  */
 export async function requestSignInLink(event: RequestEvent, email: string, redirectTo: string): Promise<never> {
-	try {
-		await auth.signIn(formEvent(event, { providerId: 'nodemailer', email, redirectTo }));
-	} catch (e) {
-		if (!isRedirect(e)) throw e;
-		// A link that could not be queued (the database refused): say so rather than pretend.
-		if (/[?&]error=/.test(e.location)) redirect(303, '/signin?error=EmailSignin');
-	}
+	await askForSignInLink(email, event.getClientAddress(), redirectTo);
 	redirect(303, '/signin/check-email');
+}
+
+/**
+ * The one path to a sign-in link, for the form and for Auth.js's endpoint alike: counted against
+ * the rate limit (every request, known address or not), then stored; mail-requests.ts makes and
+ * mails the link after the answer, only to an existing account and within the hourly limit.
+ */
+async function askForSignInLink(email: string, client: string, redirectTo: string): Promise<void> {
+	const claim = await claimAttempt(email, client);
+	if (claim.blocked === null) await requestSignInLinkMail(email, redirectTo);
 }
 
 startAuthMailWork();

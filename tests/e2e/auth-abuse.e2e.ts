@@ -67,6 +67,14 @@ const outbox = (to: string, kind: string) =>
 const usersNamed = (email: string) =>
 	withSystem(db, async (tx) => (await tx.execute<{ n: number }>(raw`select count(*)::int as n from "user" where email = ${email}`))[0].n);
 
+/** Waits until the server has handled every link or reset request for `email`. */
+async function settled(email: string) {
+	const pending = async () =>
+		withSystem(db, async (tx) => (await tx.execute<{ n: number }>(raw`select count(*)::int as n from auth_mail_requests where email = ${email} and done_at is null`))[0].n);
+	for (let i = 0; i < 100 && (await pending()) > 0; i++) await new Promise((r) => setTimeout(r, 100));
+	expect(await pending()).toBe(0);
+}
+
 const FORGED = { host: 'evil.example', 'x-forwarded-host': 'evil.example', 'x-forwarded-proto': 'https' };
 
 describe('links are built from ORIGIN only', () => {
@@ -119,6 +127,8 @@ describe('the e-mail-link endpoint of Auth.js, called directly', () => {
 		expect(b.status).toBe(302);
 		expect(a.location).toBe(`${baseURL}/auth/verify-request?provider=nodemailer&type=email`);
 		expect(b.location).toBe(a.location);
+		await settled(unknown);
+		await settled(ctx.people.owner.email);
 		expect(await outbox(unknown, 'sign_in_link')).toBe(0);
 		expect(await usersNamed(unknown)).toBe(0);
 		expect(await outbox(ctx.people.owner.email, 'sign_in_link')).toBe(1);
@@ -128,7 +138,23 @@ describe('the e-mail-link endpoint of Auth.js, called directly', () => {
 		const person = ctx.people.engineer;
 		const from = freshClient();
 		for (let i = 0; i < 12; i++) expect((await direct(person.email, from)).status).toBe(302);
+		await settled(person.email);
 		expect(await outbox(person.email, 'sign_in_link')).toBe(10);
+	});
+
+	it('mails one address at most 20 links or resets an hour, from all clients together', async () => {
+		const { people } = await shopWithPeople(db, 'authabuse-flood');
+		const email = people.viewer.email;
+		for (let i = 0; i < 20; i++) expect((await direct(email, freshClient())).status).toBe(302);
+		await settled(email);
+		expect(await outbox(email, 'sign_in_link')).toBe(20);
+		const link = await send('POST', '/signin?/link', { form: { email, redirectTo: '/' }, from: freshClient() });
+		expect([link.status, link.location]).toEqual([303, '/signin/check-email']);
+		const reset = await send('POST', '/signin/forgot', { form: { email }, from: freshClient() });
+		expect(reset.status).toBe(200);
+		await settled(email);
+		expect(await outbox(email, 'sign_in_link')).toBe(20);
+		expect(await outbox(email, 'password_reset')).toBe(0);
 	});
 
 	it('a valid link for an address without an account creates no account', async () => {

@@ -22,6 +22,11 @@ import type { Conn } from '../db/scope';
 import { env } from '../env';
 import { SIGN_IN_WINDOW_MINUTES, recordAttempt, settleAttempt as settleAttemptRow } from '../queries/sign-in';
 
+/** Sign-in links and password resets mailed to one address per hour, from all clients
+ * together: beyond it no more are sent (the answer stays the same), so a mailbox cannot be
+ * flooded from many client addresses. Password sign-in is not affected. */
+export const MAILS_PER_ADDRESS_HOUR = 20;
+
 /** Failed attempts per address × client that go through without waiting. */
 export const PER_ADDRESS = 10;
 /** The first delay after PER_ADDRESS failures; it doubles with each further failure. */

@@ -31,3 +31,11 @@ export async function userExists(conn: Conn, email: string): Promise<boolean> {
 	const [row] = await conn.select({ id: users.id }).from(users).where(eq(users.email, email)).limit(1);
 	return Boolean(row);
 }
+
+/** Sign-in and reset mails queued for an address in the last hour (any client). */
+export async function recentAuthMails(conn: Conn, email: string): Promise<number> {
+	const rows = await conn.execute<{ n: number }>(sql`
+		select count(*)::int as n from mail_outbox
+		where "to" = ${email} and kind in ('sign_in_link', 'password_reset') and created_at > now() - interval '1 hour'`);
+	return rows[0].n;
+}

@@ -79,8 +79,9 @@ export const userSessions = pgTable(
 
 /**
  * Mail asked for on a public form whose answer must not tell whether the address has an
- * account (forgot password). The form stores one row and answers at once, the same for every
- * address; a background step then looks the address up and queues the mail in the outbox.
+ * account (forgot password, sign-in link). The form stores one row and answers at once, the
+ * same for every address; a background step then looks the address up and queues the mail in
+ * the outbox.
  */
 export const authMailRequests = pgTable(
 	'auth_mail_requests',
@@ -88,11 +89,13 @@ export const authMailRequests = pgTable(
 		id: uuid().primaryKey().defaultRandom(),
 		kind: text().notNull(),
 		email: text().notNull(),
+		/** Sign-in links: the same-origin path to open after signing in. */
+		redirectTo: text(),
 		createdAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
 		doneAt: timestamp({ withTimezone: true })
 	},
 	(t) => [
 		index('auth_mail_requests_pending_idx').on(t.createdAt).where(sql`${t.doneAt} is null`),
-		check('auth_mail_requests_kind', sql`${t.kind} in ('password_reset')`)
+		check('auth_mail_requests_kind', sql`${t.kind} in ('password_reset', 'sign_in_link')`)
 	]
 );
