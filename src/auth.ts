@@ -177,6 +177,7 @@ export async function requestSignInLink(event: RequestEvent, email: string, redi
  * mails the link after the answer, only to an existing account and within the hourly limit.
  */
 async function askForSignInLink(email: string, client: string, redirectTo: string): Promise<void> {
+	if (email.length > 254) return; // no account has such an address (the form says so itself)
 	const claim = await claimAttempt(email, client);
 	if (claim.blocked === null) await requestSignInLinkMail(email, redirectTo);
 }
