@@ -45,7 +45,8 @@ const actor: Handle = async ({ event, resolve }) => {
 	} else {
 		const session = await event.locals.auth();
 		const userId = session?.user?.id;
-		if (userId) event.locals.actor = await actorFromSession(event, userId);
+		// The session id is checked against the database in the same round trip as the user.
+		if (userId) event.locals.actor = await actorFromSession(event, userId, session?.sessionId);
 	}
 	return resolve(event);
 };

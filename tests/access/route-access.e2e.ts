@@ -28,6 +28,7 @@ const EXPECTED: Record<string, Record<string, Expect>> = {
 	'/(app)/families/[id]': { GET: 'machinist', 'action:update': 'engineer', 'action:limit': 'engineer' },
 	'/(app)/instruments': { GET: 'machinist', 'action:create': 'engineer', 'action:calibrate': 'engineer', 'action:retire': 'engineer' },
 	'/(app)/settings/members': { GET: 'owner', 'action:invite': 'owner', 'action:role': 'owner', 'action:remove': 'owner', 'action:revokeInvite': 'owner' },
+	'/(app)/settings/password': { GET: 'user', 'action:default': 'user' },
 	'/(app)/settings/tokens': { GET: 'engineer', 'action:create': 'engineer', 'action:revoke': 'engineer' },
 	'/(auth)/invite/[token]': { GET: 'public', 'action:accept': 'public' },
 	'/(auth)/signin': { GET: 'public', 'action:password': 'public', 'action:link': 'public' },
@@ -80,9 +81,10 @@ const routes = listRoutes(new URL('../../src/routes', import.meta.url).pathname)
 const baseURL = inject('baseURL');
 const { db, sql } = testDb();
 const clients = {} as Record<Role, Client>;
+let people: Awaited<ReturnType<typeof shopWithPeople>>['people'];
 
 beforeAll(async () => {
-	const { people } = await shopWithPeople(db, 'access');
+	({ people } = await shopWithPeople(db, 'access'));
 	for (const role of ROLES) {
 		const c = new Client(baseURL);
 		const res = await c.signIn(people[role].email, people[role].password);
@@ -93,10 +95,16 @@ beforeAll(async () => {
 });
 afterAll(() => sql.end());
 
-function send(signedIn: Client, id: string, op: string) {
-	// A copy, so that an operation that ends the session (sign-out) leaves the others signed in.
+async function send(signedIn: Client, id: string, op: string) {
+	// A copy of the cookies; sign-out ends the session on the server, so it gets a session of
+	// its own and leaves the shared one signed in.
 	const client = new Client(baseURL);
 	client.cookies = new Map(signedIn.cookies);
+	const role = (Object.keys(clients) as Role[]).find((r) => clients[r] === signedIn);
+	if (id === '/(auth)/signout' && role) {
+		client.cookies = new Map();
+		await client.signIn(people[role].email, people[role].password);
+	}
 	const url = urlFor(id);
 	if (op.startsWith('action:')) {
 		const name = op.slice('action:'.length);

@@ -1,5 +1,5 @@
 // The only reader of the private environment. Validated once, when first imported.
-import { building } from '$app/environment';
+import { building, dev } from '$app/environment';
 import { env as raw } from '$env/dynamic/private';
 import { z } from 'zod';
 
@@ -19,7 +19,7 @@ const schema = z.object({
 	LAPMARK_DEMO: z.enum(['0', '1']).default('0'),
 	/** How often each server looks for imports that died (no heartbeat for 30 s), in ms. */
 	LAPMARK_IMPORT_WATCH_MS: z.coerce.number().int().min(100, 'LAPMARK_IMPORT_WATCH_MS must be at least 100 (ms)').default(10_000),
-	ORIGIN: z.string().optional()
+	ORIGIN: z.string().url({ message: 'ORIGIN must be the public URL, e.g. https://lapmark.example.com' }).optional()
 });
 
 // While building, SvelteKit loads server modules to analyse them; nothing connects then.
@@ -35,3 +35,11 @@ export const env = parsed.data;
 export const uploadLimitBytes = Math.round(env.LAPMARK_UPLOAD_LIMIT_MB * 1024 * 1024);
 export const demoMode = env.LAPMARK_DEMO === '1';
 export const mailFakeDir = env.LAPMARK_MAIL_DIR ?? null;
+
+/**
+ * The public origin (scheme, host, port) of this app: ORIGIN, or in development Vite's
+ * localhost address. Every absolute URL Lapmark builds (sign-in links, password reset and
+ * invitation links, Auth.js redirects) starts with it; the request's Host, X-Forwarded-Host and
+ * X-Forwarded-Proto headers are never used for that (see pinPublicOrigin in src/auth.ts).
+ */
+export const publicOrigin = new URL(env.ORIGIN || `http://localhost:${raw.PORT || (dev ? 5173 : 3000)}`).origin;

@@ -30,6 +30,7 @@ export const POLICY: Record<string, RoutePolicy> = {
 		'action:remove': 'owner',
 		'action:revokeInvite': 'owner'
 	},
+	'/(app)/settings/password': { GET: 'user', 'action:default': 'user' },
 	'/(app)/settings/tokens': { GET: 'engineer', 'action:create': 'engineer', 'action:revoke': 'engineer' },
 	'/(app)/audit': { GET: 'engineer' },
 	'/(app)/dev/mail': { GET: 'owner' },

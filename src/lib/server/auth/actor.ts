@@ -5,6 +5,7 @@ import { db } from '../db';
 import { withSystem } from '../db/scope';
 import { liveToken, membershipsOf, userById, type ShopMembership } from '../queries/memberships';
 import { lowerRole } from './access';
+import { sessionIsLive } from './sessions';
 import { looksLikeApiToken, sha256Hex } from './tokens';
 
 export interface Actor {
@@ -16,6 +17,8 @@ export interface Actor {
 	shopName: string | null;
 	role: Role | null;
 	via: 'session' | 'token';
+	/** The server-side session behind the cookie (null for a token). */
+	sessionId: string | null;
 	memberships: ShopMembership[];
 }
 
@@ -43,17 +46,22 @@ export async function actorFromBearer(header: string | null): Promise<BearerResu
 			shopName: row.shopName,
 			role,
 			via: 'token' as const,
+			sessionId: null,
 			memberships: [{ shopId: row.shopId, shopName: row.shopName, shopSlug: row.shopSlug, role }]
 		}
 	};
 }
 
-/** Resolve the signed-in user and the active shop (remembered in a cookie, checked every time). */
-export async function actorFromSession(event: RequestEvent, userId: string): Promise<Actor | null> {
+/** Resolve the signed-in user and the active shop (remembered in a cookie, checked every time).
+ * Null when the session behind the cookie has ended (signed out, revoked, idle or too old). */
+export async function actorFromSession(event: RequestEvent, userId: string, sessionId: string | null | undefined): Promise<Actor | null> {
+	// A cookie without a server-side session (made before sessions were kept) is not honoured.
+	if (!sessionId) return null;
 	return withSystem(db, async (tx) => {
-		// Both at once: postgres.js pipelines them on the transaction's connection.
-		const [user, shops] = await Promise.all([userById(tx, userId), membershipsOf(tx, userId)]);
-		if (!user) return null;
+		// All three at once: postgres.js pipelines them on the transaction's connection, so the
+		// session check adds no round trip.
+		const [live, user, shops] = await Promise.all([sessionIsLive(tx, sessionId, userId), userById(tx, userId), membershipsOf(tx, userId)]);
+		if (!live || !user) return null;
 		const wanted = event.cookies.get(ACTIVE_SHOP_COOKIE);
 		const active = shops.find((s) => s.shopId === wanted) ?? shops[0] ?? null;
 		return {
@@ -64,6 +72,7 @@ export async function actorFromSession(event: RequestEvent, userId: string): Pro
 			shopName: active?.shopName ?? null,
 			role: active?.role ?? null,
 			via: 'session' as const,
+			sessionId,
 			memberships: shops
 		};
 	});

@@ -15,13 +15,16 @@ function linkMail(intro: string, url: string, outro: string) {
 /** Called by Auth.js after it stored the link's token. Throws when the message could not go out
  * now, so the sign-in page says so; the outbox keeps retrying it. */
 export async function sendSignInLink(to: string, url: string) {
-	const body = linkMail(
-		'Use this link to sign in to Lapmark. It works once and expires in one hour.',
-		url,
-		'If you did not ask to sign in, ignore this message.'
-	);
-	const result = await sendNow({ to, subject: 'Your Lapmark sign-in link', kind: 'sign_in_link', ...body });
+	const result = await sendNow({ to, ...signInLinkMail(url) });
 	if (result.failed) throw new Error(`The sign-in e-mail could not be sent yet (${result.errors[0]}); it will be retried.`);
+}
+
+export function signInLinkMail(url: string) {
+	return {
+		subject: 'Your Lapmark sign-in link',
+		kind: 'sign_in_link',
+		...linkMail('Use this link to sign in to Lapmark. It works once and expires in one hour.', url, 'If you did not ask to sign in, ignore this message.')
+	};
 }
 
 export function passwordResetMail(url: string) {

@@ -14,11 +14,28 @@ export async function failedAttemptsSince(conn: Conn, key: { email?: string; cli
 	return row.n;
 }
 
-export async function recordAttempt(conn: Conn, email: string, client: string, succeeded: boolean) {
-	await conn.insert(signInAttempts).values({ email, client, succeeded: succeeded ? 'yes' : 'no' });
+export async function recordAttempt(conn: Conn, email: string, client: string, succeeded: boolean): Promise<string> {
+	const [row] = await conn
+		.insert(signInAttempts)
+		.values({ email, client, succeeded: succeeded ? 'yes' : 'no' })
+		.returning({ id: signInAttempts.id });
+	return row.id;
+}
+
+/** An attempt recorded as failed before the password was checked turned out to succeed. */
+export async function settleAttempt(conn: Conn, attemptId: string): Promise<void> {
+	await conn.update(signInAttempts).set({ succeeded: 'yes' }).where(eq(signInAttempts.id, attemptId));
 }
 
 export async function userExists(conn: Conn, email: string): Promise<boolean> {
 	const [row] = await conn.select({ id: users.id }).from(users).where(eq(users.email, email)).limit(1);
 	return Boolean(row);
+}
+
+/** Sign-in and reset mails queued for an address in the last hour (any client). */
+export async function recentAuthMails(conn: Conn, email: string): Promise<number> {
+	const rows = await conn.execute<{ n: number }>(sql`
+		select count(*)::int as n from mail_outbox
+		where "to" = ${email} and kind in ('sign_in_link', 'password_reset') and created_at > now() - interval '1 hour'`);
+	return rows[0].n;
 }

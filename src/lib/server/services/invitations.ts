@@ -5,6 +5,7 @@ import { eq, sql } from 'drizzle-orm';
 import type { Db } from '../db/client';
 import { withSystem } from '../db/scope';
 import { invitations, memberships, shops, users } from '../db/schema';
+import { createAccount } from '../auth/accounts';
 import { hashPassword } from '../auth/passwords';
 import { sha256Hex } from '../auth/tokens';
 import { audit } from '../queries/audit';
@@ -53,11 +54,7 @@ export async function acceptInvitation(db: Db, secret: string, account: { name: 
 		let userId = r.userId;
 		if (!userId) {
 			if (!account || !hash) return { state: 'needs_account' as const };
-			const [u] = await tx
-				.insert(users)
-				.values({ email: r.inv.email, name: account.name, passwordHash: hash, emailVerified: new Date() })
-				.returning({ id: users.id });
-			userId = u.id;
+			userId = await createAccount(tx, { email: r.inv.email, name: account.name, passwordHash: hash });
 		}
 		await tx
 			.insert(memberships)

@@ -1,22 +1,29 @@
 // "Forgot password": a single-use link by e-mail. The answer never says whether the address
-// has an account; the link expires in an hour and works once.
+// has an account: the form only stores a request (auth/mail-requests.ts), and this work runs
+// afterwards. The link expires in an hour and works once; using it ends every session.
 import { and, eq, gt, isNull, sql } from 'drizzle-orm';
 import type { Db } from '../db/client';
+import type { Tx } from '../db/scope';
 import { passwordResets, users } from '../db/schema';
-import { hashPassword } from '../auth/passwords';
+import { hashPassword, verifyPassword } from '../auth/passwords';
+import { endSessionsOf } from '../auth/sessions';
 import { newSecret, sha256Hex } from '../auth/tokens';
 import { queueMail } from '../mail/outbox';
 import { passwordResetMail } from '../mail/messages';
 
+/** In the caller's transaction: a reset link for `email`, queued in the outbox. Returns the
+ * queued mail's id, or null when the address has no account. */
+export async function queueReset(tx: Tx, email: string, origin: string): Promise<string | null> {
+	const [user] = await tx.select({ id: users.id }).from(users).where(eq(users.email, email)).limit(1);
+	if (!user) return null;
+	const secret = newSecret();
+	await tx.insert(passwordResets).values({ userId: user.id, tokenHash: sha256Hex(secret), expiresAt: sql`now() + interval '1 hour'` });
+	return queueMail(tx, { to: email, ...passwordResetMail(`${origin}/signin/reset/${secret}`) });
+}
+
 /** Returns the queued mail's id, or null when the address has no account. */
 export async function requestReset(db: Db, email: string, origin: string): Promise<string | null> {
-	return db.transaction(async (tx) => {
-		const [user] = await tx.select({ id: users.id }).from(users).where(eq(users.email, email)).limit(1);
-		if (!user) return null;
-		const secret = newSecret();
-		await tx.insert(passwordResets).values({ userId: user.id, tokenHash: sha256Hex(secret), expiresAt: sql`now() + interval '1 hour'` });
-		return queueMail(tx, { to: email, ...passwordResetMail(`${origin}/signin/reset/${secret}`) });
-	});
+	return db.transaction((tx) => queueReset(tx, email, origin));
 }
 
 export type ResetState = 'ok' | 'invalid';
@@ -30,7 +37,8 @@ export async function resetIsValid(db: Db, secret: string): Promise<boolean> {
 	return Boolean(row);
 }
 
-/** Sets the new password and uses up the link, atomically. False when the link is not valid. */
+/** Sets the new password, uses up the link and ends every session of that person, atomically.
+ * False when the link is not valid. */
 export async function completeReset(db: Db, secret: string, password: string): Promise<boolean> {
 	const hash = await hashPassword(password);
 	return db.transaction(async (tx) => {
@@ -41,6 +49,25 @@ export async function completeReset(db: Db, secret: string, password: string): P
 			.returning({ userId: passwordResets.userId });
 		if (!row) return false;
 		await tx.update(users).set({ passwordHash: hash }).where(eq(users.id, row.userId));
+		await endSessionsOf(tx, row.userId);
 		return true;
+	});
+}
+
+export type PasswordChange = { ok: true; ended: number } | { ok: false; field: 'current'; message: string };
+
+/**
+ * A signed-in person changes their password: the current one must match. Every other session
+ * of theirs ends in the same transaction; `keepSession` (the one making the change) stays.
+ */
+export async function changePassword(db: Db, userId: string, current: string, next: string, keepSession: string | null): Promise<PasswordChange> {
+	const [user] = await db.select({ hash: users.passwordHash }).from(users).where(eq(users.id, userId)).limit(1);
+	if (!(await verifyPassword(current, user?.hash)) || !user?.hash) {
+		return { ok: false, field: 'current', message: 'That is not your current password.' };
+	}
+	const hash = await hashPassword(next);
+	return db.transaction(async (tx) => {
+		await tx.update(users).set({ passwordHash: hash }).where(eq(users.id, userId));
+		return { ok: true as const, ended: await endSessionsOf(tx, userId, keepSession) };
 	});
 }

@@ -1,10 +1,9 @@
 import { fail, redirect } from '@sveltejs/kit';
-import { signIn } from '../../../auth';
+import { requestSignInLink, signInVerified } from '../../../auth';
 import { fieldErrors, linkSignIn, passwordSignIn, safeRedirect } from '$lib/schemas/auth';
 import { verifyPassword } from '$lib/server/auth/passwords';
-import { noteAttempt, signInBlocked } from '$lib/server/auth/rate-limit';
+import { claimAttempt, settleAttempt, signInBlocked } from '$lib/server/auth/rate-limit';
 import { db } from '$lib/server/db';
-import { userExists } from '$lib/server/queries/sign-in';
 import { users } from '$lib/server/db/schema';
 import { eq } from 'drizzle-orm';
 import type { Actions, PageServerLoad } from './$types';
@@ -35,34 +34,34 @@ export const load: PageServerLoad = async (event) => {
 
 export const actions: Actions = {
 	password: async (event) => {
-		const form = await event.request.clone().formData();
+		const form = await event.request.formData();
 		const typedEmail = String(form.get('email') ?? '').slice(0, 254);
 		const parsed = passwordSignIn.safeParse({ email: form.get('email'), password: form.get('password') });
 		if (!parsed.success) return fail(400, { mode: 'password', email: typedEmail, errors: fieldErrors(parsed.error) });
 		const { email, password } = parsed.data;
-		const client = event.getClientAddress();
-		const blocked = await signInBlocked(email, client);
-		if (blocked) return fail(429, { mode: 'password', email, errors: { form: blocked } });
-		const [user] = await db.select({ hash: users.passwordHash }).from(users).where(eq(users.email, email)).limit(1);
-		const ok = await verifyPassword(password, user?.hash);
-		await noteAttempt(email, client, ok && Boolean(user));
+		// Checked and counted in one step before the password is, so parallel guesses cannot
+		// slip past the limit (auth/rate-limit.ts).
+		const claim = await claimAttempt(email, event.getClientAddress());
+		if (claim.blocked !== null) return fail(429, { mode: 'password', email, errors: { form: claim.blocked } });
+		// The one lookup and the one hash check of a password sign-in.
+		const [user] = await db.select({ id: users.id, email: users.email, name: users.name, hash: users.passwordHash }).from(users).where(eq(users.email, email)).limit(1);
+		const ok = (await verifyPassword(password, user?.hash)) && Boolean(user);
+		await settleAttempt(claim.attemptId, ok);
 		if (!ok || !user) return fail(400, { mode: 'password', email, errors: { form: AUTH_ERRORS.CredentialsSignin } });
-		await signIn(event); // sets the session cookie and redirects to redirectTo
+		await signInVerified(event, { id: user.id, email: user.email, name: user.name }, safeRedirect(form.get('redirectTo')));
 	},
 	link: async (event) => {
-		const form = await event.request.clone().formData();
+		const form = await event.request.formData();
 		const typedEmail = String(form.get('email') ?? '').slice(0, 254);
 		const parsed = linkSignIn.safeParse({ email: form.get('email') });
 		if (!parsed.success) return fail(400, { mode: 'link', email: typedEmail, errors: fieldErrors(parsed.error) });
 		const { email } = parsed.data;
-		const client = event.getClientAddress();
-		const blocked = await signInBlocked(email, client);
+		// Only a look: the provider itself counts the request and enforces the limit (src/auth.ts),
+		// so a direct call to Auth.js's endpoint is held to the same rules.
+		const blocked = await signInBlocked(email, event.getClientAddress());
 		if (blocked) return fail(429, { mode: 'link', email, errors: { form: blocked } });
-		// Every link request counts against the limit, so the form cannot be used to flood a mailbox.
-		await noteAttempt(email, client, false);
-		// Links go only to existing accounts (new people join by invitation); the answer is
-		// the same either way so the form does not tell who has an account.
-		if (await userExists(db, email)) await signIn(event);
-		redirect(303, '/signin/check-email');
+		// Links go only to existing accounts (new people join by invitation or sign-up); the
+		// answer is the same 303 to the same page either way.
+		await requestSignInLink(event, email, safeRedirect(form.get('redirectTo')));
 	}
 };

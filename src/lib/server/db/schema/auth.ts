@@ -1,6 +1,7 @@
 // The tables @auth/drizzle-adapter needs, with Auth.js's own table names, plus Lapmark's
 // password hash on the user. Property names follow the adapter; columns are snake_case.
-import { integer, pgTable, primaryKey, text, timestamp } from 'drizzle-orm/pg-core';
+import { sql } from 'drizzle-orm';
+import { check, index, integer, pgTable, primaryKey, text, timestamp, uuid } from 'drizzle-orm/pg-core';
 
 export const users = pgTable('user', {
 	id: text()
@@ -51,4 +52,50 @@ export const verificationTokens = pgTable(
 		expires: timestamp({ mode: 'date', withTimezone: true }).notNull()
 	},
 	(t) => [primaryKey({ columns: [t.identifier, t.token] })]
+);
+
+/**
+ * Lapmark's own server-side sessions (the Auth.js `session` table above is for its database
+ * strategy, which Credentials cannot use). The JWT cookie carries `sid`, this row's id; every
+ * request checks the row, so a session ends at once when it is revoked (sign-out, a password
+ * reset or change, removal from a shop) or sits idle past `idle_expires_at`, and never outlives
+ * `expires_at`.
+ */
+export const userSessions = pgTable(
+	'user_sessions',
+	{
+		id: uuid().primaryKey().defaultRandom(),
+		userId: text()
+			.notNull()
+			.references(() => users.id, { onDelete: 'cascade' }),
+		createdAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
+		lastSeenAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
+		idleExpiresAt: timestamp({ withTimezone: true }).notNull(),
+		expiresAt: timestamp({ withTimezone: true }).notNull(),
+		revokedAt: timestamp({ withTimezone: true })
+	},
+	(t) => [index('user_sessions_user_idx').on(t.userId)]
+);
+
+/**
+ * Mail asked for on a public form whose answer must not tell whether the address has an
+ * account (forgot password, sign-in link). The form stores one row and answers at once, the
+ * same for every address; a background step then looks the address up and queues the mail in
+ * the outbox.
+ */
+export const authMailRequests = pgTable(
+	'auth_mail_requests',
+	{
+		id: uuid().primaryKey().defaultRandom(),
+		kind: text().notNull(),
+		email: text().notNull(),
+		/** Sign-in links: the same-origin path to open after signing in. */
+		redirectTo: text(),
+		createdAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
+		doneAt: timestamp({ withTimezone: true })
+	},
+	(t) => [
+		index('auth_mail_requests_pending_idx').on(t.createdAt).where(sql`${t.doneAt} is null`),
+		check('auth_mail_requests_kind', sql`${t.kind} in ('password_reset', 'sign_in_link')`)
+	]
 );

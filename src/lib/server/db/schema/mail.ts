@@ -23,6 +23,8 @@ export const mailOutbox = pgTable(
 	},
 	(t) => [
 		index('mail_outbox_pending_idx').on(t.nextAttemptAt).where(sql`${t.sentAt} is null`),
+		// The hourly limit of sign-in and reset mails per address (auth/rate-limit.ts).
+		index('mail_outbox_to_idx').on(t.to, t.createdAt),
 		check('mail_outbox_to_format', sql`${t.to} ~ '^[^@\\s]+@[^@\\s]+$' and length(${t.to}) <= 254`)
 	]
 );

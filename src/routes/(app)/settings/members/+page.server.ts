@@ -3,7 +3,9 @@ import { fieldErrors } from '$lib/schemas/auth';
 import { changeRoleSchema, idSchema, inviteSchema, memberSchema } from '$lib/schemas/members';
 import { requireRole } from '$lib/server/auth/guards';
 import { newSecret, sha256Hex } from '$lib/server/auth/tokens';
+import { endSessionsOf } from '$lib/server/auth/sessions';
 import { db } from '$lib/server/db';
+import { publicOrigin } from '$lib/server/env';
 import { withShop } from '$lib/server/db/scope';
 import { deliverQueued, queueMail } from '$lib/server/mail';
 import { invitationMail } from '$lib/server/mail/messages';
@@ -39,7 +41,7 @@ export const actions: Actions = {
 		if (!parsed.success) return fail(400, { action: 'invite', values: { email: String(form.email ?? '').slice(0, 254), role: String(form.role ?? '') }, errors: fieldErrors(parsed.error) });
 		const { email, role } = parsed.data;
 		const secret = newSecret();
-		const url = `${event.url.origin}/invite/${secret}`;
+		const url = `${publicOrigin}/invite/${secret}`;
 		const mailId = await withShop(db, actor.shopId, async (tx) => {
 			const inv = await createInvitation(tx, { shopId: actor.shopId, email, role, tokenHash: sha256Hex(secret), invitedBy: actor.userId });
 			await audit(tx, actor.shopId, { userId: actor.userId, label: actor.email }, { entity: 'invitation', entityId: inv.id, action: 'create', after: { email, role } });
@@ -82,6 +84,10 @@ export const actions: Actions = {
 				return fail(409, { action: 'remove', errors: { form: LAST_OWNER } });
 			}
 			await removeMember(tx, actor.shopId, userId);
+			// Every session of the person ends at once, in this transaction (they sign in again
+			// for any other shop they belong to). A role change needs no such step: the role is
+			// read from the database on every request, so it applies from the next one.
+			await endSessionsOf(tx, userId);
 			await audit(tx, actor.shopId, { userId: actor.userId, label: actor.email }, { entity: 'membership', entityId: userId, action: 'delete', before: { role: before } });
 			return { action: 'remove', ok: true, message: 'Member removed.' };
 		});

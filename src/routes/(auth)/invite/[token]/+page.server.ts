@@ -1,6 +1,6 @@
 import { fail, redirect } from '@sveltejs/kit';
 import { z } from 'zod';
-import { signIn } from '../../../../auth';
+import { signInVerified } from '../../../../auth';
 import { fieldErrors, newPasswordSchema } from '$lib/schemas/auth';
 import { ACTIVE_SHOP_COOKIE } from '$lib/server/auth/actor';
 import { db } from '$lib/server/db';
@@ -35,7 +35,7 @@ export const actions: Actions = {
 		}
 		event.cookies.set(ACTIVE_SHOP_COOKIE, result.shopId, { path: '/', httpOnly: true, sameSite: 'lax', secure: event.url.protocol === 'https:', maxAge: 365 * 24 * 3600 });
 		if (!account) redirect(303, `/signin?joined=1&redirectTo=%2F`);
-		// A new account: sign in with the password just chosen (the form carries email, password).
-		await signIn(event);
+		// A new account, just made with the password chosen on this form: signed in at once.
+		await signInVerified(event, { id: result.userId, email: result.email, name: account.name }, '/');
 	}
 };
