@@ -17,6 +17,8 @@ const schema = z.object({
 	/** Failed sign-ins allowed per client address in 15 minutes (per e-mail address: 10). */
 	LAPMARK_SIGNIN_CLIENT_LIMIT: z.coerce.number().int().positive().default(50),
 	LAPMARK_DEMO: z.enum(['0', '1']).default('0'),
+	/** Public shop sign-up at /signup: '1' (default) open, '0' closed (the operator runs `npm run shop:create`). */
+	LAPMARK_PUBLIC_SIGNUP: z.enum(['0', '1'], { message: 'LAPMARK_PUBLIC_SIGNUP must be 0 or 1' }).default('1'),
 	ORIGIN: z.string().optional()
 });
 
@@ -32,4 +34,5 @@ if (!parsed.success) {
 export const env = parsed.data;
 export const uploadLimitBytes = Math.round(env.LAPMARK_UPLOAD_LIMIT_MB * 1024 * 1024);
 export const demoMode = env.LAPMARK_DEMO === '1';
+export const publicSignup = env.LAPMARK_PUBLIC_SIGNUP === '1';
 export const mailFakeDir = env.LAPMARK_MAIL_DIR ?? null;

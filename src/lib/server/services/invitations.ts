@@ -8,6 +8,7 @@ import { invitations, memberships, shops, users } from '../db/schema';
 import { hashPassword } from '../auth/passwords';
 import { sha256Hex } from '../auth/tokens';
 import { audit } from '../queries/audit';
+import { createUser } from './accounts';
 
 export type InvitationState = 'ok' | 'unknown' | 'expired' | 'used' | 'revoked';
 
@@ -53,11 +54,7 @@ export async function acceptInvitation(db: Db, secret: string, account: { name: 
 		let userId = r.userId;
 		if (!userId) {
 			if (!account || !hash) return { state: 'needs_account' as const };
-			const [u] = await tx
-				.insert(users)
-				.values({ email: r.inv.email, name: account.name, passwordHash: hash, emailVerified: new Date() })
-				.returning({ id: users.id });
-			userId = u.id;
+			userId = await createUser(tx, { email: r.inv.email, name: account.name, passwordHash: hash, emailVerified: new Date(), via: 'invitation' });
 		}
 		await tx
 			.insert(memberships)
