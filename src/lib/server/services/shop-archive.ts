@@ -79,8 +79,8 @@ async function archiveQueries(t: postgres.TransactionSql) {
 			queries.push({
 				file: 'memberships.csv',
 				table,
-				columns: ['user_id', 'email', 'name', 'role', 'created_at'],
-				text: 'select m.user_id, u.email, u.name, m.role, m.created_at from memberships m join "user" u on u.id = m.user_id where m.shop_id = $1 order by m.created_at'
+				columns: ['shop_id', 'user_id', 'email', 'name', 'role', 'created_at'],
+				text: 'select m.shop_id, m.user_id, u.email, u.name, m.role, m.created_at from memberships m join "user" u on u.id = m.user_id where m.shop_id = $1 order by m.created_at'
 			});
 			continue;
 		}
