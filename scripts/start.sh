@@ -21,10 +21,14 @@ trap 'stop_all; exit 143' TERM
 trap 'stop_all' EXIT
 
 ensure_deps
-pg_up lapmark
+# LAPMARK_DEMO=0: a real shop's start, on a database of its own (never the demo's), not seeded.
+LAPMARK_DEMO=${LAPMARK_DEMO:-1}
+if [ "$LAPMARK_DEMO" = 1 ]; then LAPMARK_DB=${LAPMARK_DB:-lapmark}; else LAPMARK_DB=${LAPMARK_DB:-lapmark_shop}; fi
+[[ $LAPMARK_DB =~ ^[a-z_][a-z0-9_]{0,62}$ ]] || { log "LAPMARK_DB must be a database name of lower-case letters, digits and _"; exit 2; }
+pg_up "$LAPMARK_DB"
 ensure_auth_secret
 npx tsx scripts/migrate.ts
-npx tsx scripts/seed.ts --if-empty
+if [ "$LAPMARK_DEMO" = 1 ]; then npx tsx scripts/seed.ts --if-empty; else log "no demo (LAPMARK_DEMO=0): database $LAPMARK_DB"; fi
 ensure_build
 start_mail_fake "${LAPMARK_SMTP_PORT:-2525}" "$(app_state_dir)/mail"
 
@@ -32,11 +36,11 @@ if pg_port_taken "$PORT"; then
 	log "port $PORT is taken; set PORT to a free port"
 	exit 1
 fi
-export PORT HOST=${HOST:-127.0.0.1} ORIGIN=${ORIGIN:-http://localhost:$PORT} BODY_SIZE_LIMIT=Infinity LAPMARK_DEMO=1
+export PORT HOST=${HOST:-127.0.0.1} ORIGIN=${ORIGIN:-http://localhost:$PORT} BODY_SIZE_LIMIT=Infinity LAPMARK_DEMO
 node build &
 WEB_PID=$!
 for _ in $(seq 1 100); do pg_port_taken "$PORT" && break; sleep 0.1; done
 
-npx tsx scripts/seed.ts --print-signins
+if [ "$LAPMARK_DEMO" = 1 ]; then npx tsx scripts/seed.ts --print-signins; fi
 log "ready in $(( $(date +%s) - T0 )) s: open $ORIGIN   (Ctrl-C stops the app and the database)"
 wait "$WEB_PID"

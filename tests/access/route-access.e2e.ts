@@ -64,7 +64,11 @@ const EXPECTED: Record<string, Record<string, Expect>> = {
 	'/api/v1/readings': { GET: 'engineer' },
 	'/(app)/explore': { GET: 'engineer' },
 	'/api/v1/openapi.json': { GET: 'public' },
-	'/(app)/api-guide': { GET: 'engineer' }
+	'/(app)/api-guide': { GET: 'engineer' },
+	'/(auth)/signup': { GET: 'public', 'action:default': 'public' },
+	'/(auth)/signup/confirm/[token]': { GET: 'public', 'action:confirm': 'public' },
+	'/(app)/settings/shop': { GET: 'owner' },
+	'/(app)/settings/shop/archive.zip': { GET: 'owner' }
 };
 
 /** A concrete URL for a route id: groups dropped, parameters filled with harmless values. */

@@ -19,6 +19,8 @@ const schema = z.object({
 	LAPMARK_DEMO: z.enum(['0', '1']).default('0'),
 	/** How often each server looks for imports that died (no heartbeat for 30 s), in ms. */
 	LAPMARK_IMPORT_WATCH_MS: z.coerce.number().int().min(100, 'LAPMARK_IMPORT_WATCH_MS must be at least 100 (ms)').default(10_000),
+	/** Public shop sign-up at /signup: '1' (default) open, '0' closed (the operator runs `npm run shop:create`). */
+	LAPMARK_PUBLIC_SIGNUP: z.enum(['0', '1'], { message: 'LAPMARK_PUBLIC_SIGNUP must be 0 or 1' }).default('1'),
 	ORIGIN: z.string().url({ message: 'ORIGIN must be the public URL, e.g. https://lapmark.example.com' }).optional()
 });
 
@@ -34,6 +36,7 @@ if (!parsed.success) {
 export const env = parsed.data;
 export const uploadLimitBytes = Math.round(env.LAPMARK_UPLOAD_LIMIT_MB * 1024 * 1024);
 export const demoMode = env.LAPMARK_DEMO === '1';
+export const publicSignup = env.LAPMARK_PUBLIC_SIGNUP === '1';
 export const mailFakeDir = env.LAPMARK_MAIL_DIR ?? null;
 
 /**

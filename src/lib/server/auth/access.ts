@@ -74,7 +74,11 @@ export const POLICY: Record<string, RoutePolicy> = {
 	'/api/v1/readings': { GET: 'engineer' },
 	'/(app)/explore': { GET: 'engineer' },
 	'/api/v1/openapi.json': { GET: 'public' },
-	'/(app)/api-guide': { GET: 'engineer' }
+	'/(app)/api-guide': { GET: 'engineer' },
+	'/(auth)/signup': { GET: 'public', 'action:default': 'public' },
+	'/(auth)/signup/confirm/[token]': { GET: 'public', 'action:confirm': 'public' },
+	'/(app)/settings/shop': { GET: 'owner' },
+	'/(app)/settings/shop/archive.zip': { GET: 'owner' }
 };
 
 /** Which operation a request is: its method, or `action:<name>` for a form action POST. */

@@ -5,10 +5,10 @@ import { eq, sql } from 'drizzle-orm';
 import type { Db } from '../db/client';
 import { withSystem } from '../db/scope';
 import { invitations, memberships, shops, users } from '../db/schema';
-import { createAccount } from '../auth/accounts';
 import { hashPassword } from '../auth/passwords';
 import { sha256Hex } from '../auth/tokens';
 import { audit } from '../queries/audit';
+import { createUser } from './accounts';
 
 export type InvitationState = 'ok' | 'unknown' | 'expired' | 'used' | 'revoked';
 
@@ -54,7 +54,7 @@ export async function acceptInvitation(db: Db, secret: string, account: { name: 
 		let userId = r.userId;
 		if (!userId) {
 			if (!account || !hash) return { state: 'needs_account' as const };
-			userId = await createAccount(tx, { email: r.inv.email, name: account.name, passwordHash: hash });
+			userId = await createUser(tx, { email: r.inv.email, name: account.name, passwordHash: hash, emailVerified: new Date(), via: 'invitation' });
 		}
 		await tx
 			.insert(memberships)

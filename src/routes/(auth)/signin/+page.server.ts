@@ -6,6 +6,8 @@ import { claimAttempt, settleAttempt, signInBlocked } from '$lib/server/auth/rat
 import { db } from '$lib/server/db';
 import { users } from '$lib/server/db/schema';
 import { eq } from 'drizzle-orm';
+import { publicSignup } from '$lib/server/env';
+import { noShopsYet } from '$lib/server/services/signup';
 import type { Actions, PageServerLoad } from './$types';
 
 /** Messages for the errors Auth.js reports back in the URL; none says whether an address exists. */
@@ -22,6 +24,9 @@ export const load: PageServerLoad = async (event) => {
 	if (event.locals.actor) redirect(303, redirectTo);
 	const code = event.url.searchParams.get('error');
 	return {
+		// A fresh install (no shop at all) offers to create the first one.
+		firstShop: await noShopsYet(db),
+		signupOpen: publicSignup,
 		redirectTo,
 		authError: code ? (AUTH_ERRORS[code] ?? 'Sign-in did not work. Try again.') : null,
 		notice: event.url.searchParams.has('reset')

@@ -1,0 +1,39 @@
+import { fail } from '@sveltejs/kit';
+import { signIn } from '../../../../../auth';
+import { passwordSchema } from '$lib/schemas/auth';
+import { ACTIVE_SHOP_COOKIE } from '$lib/server/auth/actor';
+import { noteAttempt, signInBlocked } from '$lib/server/auth/rate-limit';
+import { db } from '$lib/server/db';
+import { SIGNUP_MESSAGES, confirmSignup, inspectSignup } from '$lib/server/services/signup';
+import type { Actions, PageServerLoad } from './$types';
+
+// Opening the link only shows the form (mail scanners open links too); the POST with the
+// password chosen at sign-up creates the shop.
+export const load: PageServerLoad = async ({ params }) => {
+	const s = await inspectSignup(db, params.token);
+	if (s.state !== 'ok') return { signup: null, problem: SIGNUP_MESSAGES[s.state] };
+	return { signup: { email: s.email, ownerName: s.ownerName, shopName: s.shopName }, problem: null };
+};
+
+export const actions: Actions = {
+	confirm: async (event) => {
+		const form = await event.request.clone().formData();
+		const s = await inspectSignup(db, event.params.token);
+		if (s.state !== 'ok') return fail(410, { errors: { form: SIGNUP_MESSAGES[s.state] } as Record<string, string> });
+		const parsed = passwordSchema.safeParse(form.get('password'));
+		if (!parsed.success) return fail(400, { errors: { password: parsed.error.issues[0].message } as Record<string, string> });
+		const client = event.getClientAddress();
+		const blocked = await signInBlocked(s.email, client);
+		if (blocked) return fail(429, { errors: { form: blocked } as Record<string, string> });
+		const result = await confirmSignup(db, event.params.token, parsed.data);
+		if (result.state === 'wrong_password') {
+			await noteAttempt(s.email, client, false);
+			return fail(400, { errors: { password: 'That is not the password you chose when you signed up.' } as Record<string, string> });
+		}
+		if (result.state !== 'ok') return fail(410, { errors: { form: SIGNUP_MESSAGES[result.state] } as Record<string, string> });
+		await noteAttempt(s.email, client, true);
+		event.cookies.set(ACTIVE_SHOP_COOKIE, result.shopId, { path: '/', httpOnly: true, sameSite: 'lax', secure: event.url.protocol === 'https:', maxAge: 365 * 24 * 3600 });
+		// Signs in with the address and the password just checked (the form carries both).
+		await signIn(event);
+	}
+};
