@@ -1,9 +1,9 @@
 import { fail } from '@sveltejs/kit';
 import { fieldErrors } from '$lib/schemas/auth';
 import { signupSchema } from '$lib/schemas/shop';
-import { noteAttempt, signInBlocked } from '$lib/server/auth/rate-limit';
+import { claimAttempt } from '$lib/server/auth/rate-limit';
 import { db } from '$lib/server/db';
-import { env, publicSignup } from '$lib/server/env';
+import { publicOrigin, publicSignup } from '$lib/server/env';
 import { deliverQueued } from '$lib/server/mail';
 import { SIGNUP_LINK_HOURS, noShopsYet, requestSignup } from '$lib/server/services/signup';
 import type { Actions, PageServerLoad } from './$types';
@@ -30,11 +30,11 @@ export const actions: Actions = {
 		if (!parsed.success) return fail(400, { errors: fieldErrors(parsed.error), values });
 		const input = parsed.data;
 		const client = event.getClientAddress();
-		const blocked = await signInBlocked(input.email, client);
-		if (blocked) return fail(429, { errors: { form: blocked } as Record<string, string>, values });
-		// Every sign-up counts against the limit, so the form cannot be used to flood a mailbox.
-		await noteAttempt(input.email, client, false);
-		const mailId = await requestSignup(db, input, env.ORIGIN ?? event.url.origin);
+		// Every sign-up counts against the limit (checked and counted in one step, so parallel
+		// requests cannot all slip under it) and the form cannot be used to flood a mailbox.
+		const claim = await claimAttempt(input.email, client);
+		if (claim.blocked) return fail(429, { errors: { form: claim.blocked } as Record<string, string>, values });
+		const mailId = await requestSignup(db, input, publicOrigin);
 		// Sent after answering; a send that fails is retried from the outbox.
 		void deliverQueued([mailId]).catch((e) => console.error('[signup] mail not sent yet', e));
 		return { sent: true, email: input.email };

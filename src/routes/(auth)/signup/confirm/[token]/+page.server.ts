@@ -1,5 +1,5 @@
 import { fail } from '@sveltejs/kit';
-import { signIn } from '../../../../../auth';
+import { signInVerified } from '../../../../../auth';
 import { passwordSchema } from '$lib/schemas/auth';
 import { ACTIVE_SHOP_COOKIE } from '$lib/server/auth/actor';
 import { noteAttempt, signInBlocked } from '$lib/server/auth/rate-limit';
@@ -33,7 +33,7 @@ export const actions: Actions = {
 		if (result.state !== 'ok') return fail(410, { errors: { form: SIGNUP_MESSAGES[result.state] } as Record<string, string> });
 		await noteAttempt(s.email, client, true);
 		event.cookies.set(ACTIVE_SHOP_COOKIE, result.shopId, { path: '/', httpOnly: true, sameSite: 'lax', secure: event.url.protocol === 'https:', maxAge: 365 * 24 * 3600 });
-		// Signs in with the address and the password just checked (the form carries both).
-		await signIn(event);
+		// The password was just checked by confirmSignup: sign in without checking it again.
+		await signInVerified(event, { id: result.userId, email: result.email, name: s.ownerName }, '/');
 	}
 };
