@@ -1,7 +1,7 @@
 #!/usr/bin/env bash
 # Lapmark's private PostgreSQL: installed from Debian's packages, one cluster under the data
 # folder, listening on 127.0.0.1 only. Source this file for its functions, or run it:
-#   bash scripts/pg.sh start|stop|status|url [database]
+#   bash scripts/pg.sh start|stop|restart|status|url [database]
 #
 # Environment:
 #   LAPMARK_DATA_DIR   data folder (default: .lapmark/ in the checkout)
@@ -141,6 +141,13 @@ pg_stop() {
 	pg_as_owner "$PG_BIN/pg_ctl" -D "$data" -m fast -w stop >/dev/null && pg_log "PostgreSQL stopped"
 }
 
+# A fast restart (open connections are closed, as on an operator's restart or a package update).
+pg_restart() {
+	local root data; root=$(pg_data_root); data="$root/pg"
+	pg_as_owner "$PG_BIN/pg_ctl" -D "$data" -m fast -w -t 60 -o "-p $PG_PORT" -l "$root/postgres.log" restart >/dev/null &&
+		pg_log "PostgreSQL restarted"
+}
+
 # Run SQL as the set-up superuser.
 pg_admin_sql() {
 	local root; root=$(pg_data_root)
@@ -200,8 +207,9 @@ if [ "${BASH_SOURCE[0]}" = "$0" ]; then
 	case "${1:-}" in
 		start) pg_ensure_installed && pg_init && pg_start && pg_ensure_database "${2:-lapmark}" ;;
 		stop) pg_stop ;;
+		restart) pg_restart ;;
 		status) if pg_running; then echo "running on 127.0.0.1:$PG_PORT ($(pg_data_root)/pg)"; else echo "stopped"; exit 3; fi ;;
 		url) pg_url "${2:-lapmark}" ;;
-		*) echo "usage: bash scripts/pg.sh start|stop|status|url [database]" >&2; exit 2 ;;
+		*) echo "usage: bash scripts/pg.sh start|stop|restart|status|url [database]" >&2; exit 2 ;;
 	esac
 fi
