@@ -32,7 +32,7 @@ describe('npm start supervises the web server', () => {
 		cluster = await demoCluster('supervise');
 		expect((await cluster.pg('stop')).code).toBe(0);
 		const port = await freePort();
-		const env = { ...cluster.env, PORT: String(port), LAPMARK_SMTP_PORT: String(await freePort()) };
+		const env: NodeJS.ProcessEnv = { ...cluster.env, PORT: String(port), LAPMARK_SMTP_PORT: String(await freePort()) };
 		delete env.SMTP_URL;
 		const start = spawn('bash', ['scripts/start.sh'], { cwd: REPO, env, detached: true, stdio: ['ignore', 'pipe', 'pipe'] });
 		startPid = start.pid;
