@@ -1,6 +1,6 @@
 // npm run backup / npm run restore: the demo shop round-trips through one file into an empty data
 // folder (row counts of every table equal); a non-empty data folder is refused and left alone.
-import { statSync } from 'node:fs';
+import { rmSync, statSync } from 'node:fs';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { demoCluster, removeCluster, rowCounts, script, throwawayCluster, type Cluster } from '../helpers/cluster';
@@ -8,7 +8,9 @@ import postgres from 'postgres';
 
 let source: Cluster | undefined;
 let target: Cluster | undefined;
+let file: string | undefined;
 afterAll(async () => {
+	if (file) rmSync(file, { force: true });
 	await removeCluster(source);
 	await removeCluster(target);
 }, 60_000);
@@ -22,7 +24,7 @@ describe('backup and restore', () => {
 		expect(before['public.shops']).toBe(2);
 		expect(before['public.readings']).toBeGreaterThan(0);
 
-		const file = join(source.dir, '..', `${source.dir.split('/').pop()}.tar`);
+		file = join(source.dir, '..', `${source.dir.split('/').pop()}.tar`);
 		const backup = await script(['scripts/backup.sh', file], source.env);
 		expect(backup.code, backup.stderr).toBe(0);
 		expect(statSync(file).mode & 0o777).toBe(0o600);
