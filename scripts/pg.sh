@@ -1,7 +1,7 @@
 #!/usr/bin/env bash
 # Lapmark's private PostgreSQL: installed from Debian's packages, one cluster under the data
 # folder, listening on 127.0.0.1 only. Source this file for its functions, or run it:
-#   bash scripts/pg.sh start|stop|status|url [database]
+#   bash scripts/pg.sh start|stop|restart|status|url [database]
 #
 # Environment:
 #   LAPMARK_DATA_DIR   data folder (default: .lapmark/ in the checkout)
@@ -63,23 +63,40 @@ pg_running() {
 	[ -f "$data/postmaster.pid" ] && pg_as_owner "$PG_BIN/pg_ctl" -D "$data" status >/dev/null 2>&1
 }
 
+# Create the data folder and any missing folder above it, readable by others (755) so that the
+# `postgres` user can pass through. Only folders created here get that mode: a folder that already
+# existed (/tmp, a home folder) is never changed.
+pg_mkdir_own() {
+	local dir=$1 missing=()
+	while [ ! -e "$dir" ]; do missing=("$dir" "${missing[@]}"); dir=$(dirname "$dir"); done
+	local d
+	for d in "${missing[@]}"; do
+		mkdir "$d" && chmod 755 "$d" || { pg_log "could not create $d"; return 1; }
+	done
+}
+
 # Create the cluster the first time: a superuser for set-up, and the role the app uses.
 # The app's role is not a superuser, so row-level security applies to it.
 pg_init() {
 	local root data; root=$(pg_data_root); data="$root/pg"
 	[ -f "$data/PG_VERSION" ] && return 0
 	pg_log "creating a new cluster in $data"
+	pg_mkdir_own "$root" || return 1
 	mkdir -p "$root/run" "$data"
 	chmod 700 "$data"
 	[ -f "$root/password" ] || (umask 077; head -c 24 /dev/urandom | base64 | tr -d '/+=' > "$root/password")
 	if [ "$(id -u)" = 0 ]; then
-		mkdir -p "$(dirname "$root")"
 		chown -R postgres:postgres "$root"
-		chmod 755 "$(dirname "$root")" 2>/dev/null || true
+		if ! runuser -u postgres -- test -x "$root"; then
+			pg_log "the postgres user cannot enter $root (a folder above it is closed to other users);"
+			pg_log "set LAPMARK_DATA_DIR to a folder it can reach, e.g. /var/lib/lapmark/NAME"
+			return 1
+		fi
 	fi
 	local pwfile="$root/password"
+	# Data checksums: a page damaged on disk is reported when read, not silently used.
 	pg_as_owner "$PG_BIN/initdb" -D "$data" -U lapmark_admin --auth-local=peer --auth-host=scram-sha-256 \
-		--pwfile="$pwfile" -E UTF8 --locale=C.UTF-8 >"$root/initdb.log" 2>&1 || {
+		--pwfile="$pwfile" -E UTF8 --locale=C.UTF-8 --data-checksums >"$root/initdb.log" 2>&1 || {
 		pg_log "initdb failed; see $root/initdb.log"
 		rm -rf "$data"
 		return 1
@@ -122,6 +139,13 @@ pg_stop() {
 	local data; data="$(pg_data_root)/pg"
 	pg_running || return 0
 	pg_as_owner "$PG_BIN/pg_ctl" -D "$data" -m fast -w stop >/dev/null && pg_log "PostgreSQL stopped"
+}
+
+# A fast restart (open connections are closed, as on an operator's restart or a package update).
+pg_restart() {
+	local root data; root=$(pg_data_root); data="$root/pg"
+	pg_as_owner "$PG_BIN/pg_ctl" -D "$data" -m fast -w -t 60 -o "-p $PG_PORT" -l "$root/postgres.log" restart >/dev/null &&
+		pg_log "PostgreSQL restarted"
 }
 
 # Run SQL as the set-up superuser.
@@ -183,8 +207,9 @@ if [ "${BASH_SOURCE[0]}" = "$0" ]; then
 	case "${1:-}" in
 		start) pg_ensure_installed && pg_init && pg_start && pg_ensure_database "${2:-lapmark}" ;;
 		stop) pg_stop ;;
+		restart) pg_restart ;;
 		status) if pg_running; then echo "running on 127.0.0.1:$PG_PORT ($(pg_data_root)/pg)"; else echo "stopped"; exit 3; fi ;;
 		url) pg_url "${2:-lapmark}" ;;
-		*) echo "usage: bash scripts/pg.sh start|stop|status|url [database]" >&2; exit 2 ;;
+		*) echo "usage: bash scripts/pg.sh start|stop|restart|status|url [database]" >&2; exit 2 ;;
 	esac
 fi

@@ -4,7 +4,8 @@ import { handle as authHandle } from './auth';
 import { POLICY, operationOf } from '$lib/server/auth/access';
 import { actorFromBearer, actorFromSession } from '$lib/server/auth/actor';
 import { requireRole, requireUser } from '$lib/server/auth/guards';
-import { db, sql } from '$lib/server/db';
+import { db, isDatabaseUnavailable, sql } from '$lib/server/db';
+import { DATABASE_DOWN_MESSAGE, DATABASE_RETRY_SECONDS } from '$lib/database-down';
 import { startImportWatch, stopImportWatch } from '$lib/server/import';
 import { startMailRetries } from '$lib/server/mail';
 import { warmOverviews } from '$lib/server/queries/overview';
@@ -73,10 +74,38 @@ const guard: Handle = async ({ event, resolve }) => {
 	return resolve(event);
 };
 
-export const handle = sequence(closeCredentialsCallback, authHandle, actor, guard);
+/** Requests whose error was "the database is not answering" (marked by handleError). */
+const databaseDown = new WeakSet<object>();
+
+/** While PostgreSQL does not answer, a request gets 503 with a message that says so (a page
+ * that retries by itself, or JSON) instead of a generic 500. handleError cannot set a status,
+ * so this turns the 500 it marked into a 503; an error thrown by a later Handle becomes a 503
+ * here directly. */
+const databaseUnavailable: Handle = async ({ event, resolve }) => {
+	let response: Response;
+	try {
+		response = await resolve(event);
+	} catch (err) {
+		if (!isDatabaseUnavailable(err)) throw err;
+		console.error(`[db] ${event.request.method} ${event.url.pathname}: the database is not answering`);
+		error(503, { message: DATABASE_DOWN_MESSAGE });
+	}
+	if (response.status !== 500 || !databaseDown.has(event.locals)) return response;
+	const headers = new Headers(response.headers);
+	headers.set('retry-after', String(DATABASE_RETRY_SECONDS));
+	headers.set('cache-control', 'no-store');
+	return new Response(response.body, { status: 503, statusText: 'Service Unavailable', headers });
+};
+
+export const handle = sequence(databaseUnavailable, closeCredentialsCallback, authHandle, actor, guard);
 
 export const handleError: HandleServerError = ({ error: err, event, status, message }) => {
 	const id = crypto.randomUUID();
+	if (isDatabaseUnavailable(err)) {
+		databaseDown.add(event.locals);
+		console.error(`[error ${id}] ${event.request.method} ${event.url.pathname}: the database is not answering`);
+		return { message: DATABASE_DOWN_MESSAGE, id };
+	}
 	if (status !== 404) console.error(`[error ${id}] ${event.request.method} ${event.url.pathname}`, err);
 	return { message: status === 500 ? 'Something went wrong on our side.' : message, id };
 };

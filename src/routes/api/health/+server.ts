@@ -1,5 +1,6 @@
 import { json } from '@sveltejs/kit';
 import { sql } from '$lib/server/db';
+import { DATABASE_DOWN_MESSAGE, DATABASE_RETRY_SECONDS } from '$lib/database-down';
 import type { RequestHandler } from './$types';
 
 export const GET: RequestHandler = async () => {
@@ -10,6 +11,9 @@ export const GET: RequestHandler = async () => {
 		]);
 		return json({ ok: true, db: 'up' }, { headers: { 'cache-control': 'no-store' } });
 	} catch {
-		return json({ ok: false, db: 'down' }, { status: 503, headers: { 'cache-control': 'no-store' } });
+		return json(
+			{ ok: false, db: 'down', message: DATABASE_DOWN_MESSAGE },
+			{ status: 503, headers: { 'cache-control': 'no-store', 'retry-after': String(DATABASE_RETRY_SECONDS) } }
+		);
 	}
 };
