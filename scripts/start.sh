@@ -33,7 +33,7 @@ if pg_port_taken "$PORT"; then
 	exit 1
 fi
 export PORT HOST=${HOST:-127.0.0.1} ORIGIN=${ORIGIN:-http://localhost:$PORT} BODY_SIZE_LIMIT=Infinity LAPMARK_DEMO=1
-node build &
+node server.js &
 WEB_PID=$!
 for _ in $(seq 1 100); do pg_port_taken "$PORT" && break; sleep 0.1; done
 
