@@ -353,7 +353,7 @@ if (Number.isFinite(keepAlive) && keepAlive > 0) server.keepAliveTimeout = keepA
 
 const host = env.HOST || '0.0.0.0';
 const port = Number(env.PORT || 3000);
-server.listen({ host, port }, () => console.log(`Listening on http://${host}:${port}`));
+server.listen({ host, port }, () => console.log(`Listening on http://${host}:${server.address().port}`));
 
 // As adapter-node's own entry does: stop taking requests, let those under way finish (at most
 // SHUTDOWN_TIMEOUT seconds, default 8), then tell the app (hooks.server.ts closes the pool).

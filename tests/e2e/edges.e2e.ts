@@ -8,6 +8,7 @@ import http from 'node:http';
 import net from 'node:net';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import { sharedBrowser } from '../helpers/browser';
+import { Client } from '../helpers/http';
 
 const baseURL = inject('baseURL');
 const OWNER = { email: 'owner@brackenford.example', password: 'brackenford-owner-demo' };
@@ -282,5 +283,60 @@ describe('a server whose ORIGIN says localhost, opened at 127.0.0.1', () => {
 		const body = await res.json();
 		expect(body.message).toContain('The longest parameter is customer (100009 characters)');
 		expectSecurityHeaders(res, 'a 414');
+	});
+});
+
+describe('bad input is a 4xx that names the parameter (the shared test server)', () => {
+	const bearer = { authorization: `Bearer ${OWNER_TOKEN}` };
+	const get = async (path: string, headers: Record<string, string> = bearer) => {
+		const res = await fetch(baseURL + path, { headers, redirect: 'manual' });
+		return { status: res.status, location: res.headers.get('location'), text: await res.text() };
+	};
+
+	it('never redirects off the site, and refuses a redirectTo with a tab or a line break', async () => {
+		const viewer = new Client(baseURL);
+		await viewer.signIn('viewer@brackenford.example', 'brackenford-viewer-demo');
+		expect(viewer.signedIn).toBe(true);
+		for (const bad of ['/%09/evil.example', '/%0A', '//evil.example', '/%5Cevil.example', 'https://evil.example/']) {
+			const res = await viewer.get(`/signin?redirectTo=${bad}`);
+			expect(res.status, bad).toBe(400);
+			expect(res.headers.get('location'), bad).toBeNull();
+			expect(await res.text(), bad).toContain('redirectTo must be a path on this site, such as /heads');
+		}
+		const ok = await viewer.get('/signin?redirectTo=%2Fheads%3Fpage%3D2');
+		expect(ok.status).toBe(303);
+		expect(ok.headers.get('location')).toBe('/heads?page=2');
+	});
+
+	it('refuses NUL and other control characters in text parameters, JSON and CSV headers', async () => {
+		for (const [name, value] of [
+			['customer', 'a%00b'],
+			['machinist', '%00'],
+			['customer', '%1B%5B2J']
+		]) {
+			const r = await get(`/api/v1/stats/distribution?measurement=clearance&${name}=${value}`);
+			expect(r.status, name).toBe(400);
+			expect(JSON.parse(r.text).message).toBe(`${name} must not contain control characters (such as a NUL byte or a line break)`);
+		}
+		const headers = await fetch(`${baseURL}/api/v1/imports/headers`, {
+			method: 'POST',
+			headers: { ...bearer, 'content-type': 'application/json' },
+			body: JSON.stringify({ headers: ['head_serial', 'fam\u0000ily'] })
+		});
+		expect(headers.status).toBe(400);
+		expect((await headers.json()).message).toBe('headers.1: headers must not contain control characters (such as a NUL byte or a line break)');
+	});
+
+	it('refuses days outside the calendar the app keeps, and numbers whose sums overflow', async () => {
+		const far = await get('/api/v1/stats/distribution?measurement=clearance&from=9999-12-31');
+		expect(far.status).toBe(400);
+		expect(JSON.parse(far.text).message).toBe('from must be a day between 1900-01-01 and 2999-12-31');
+		const readings = await get('/api/v1/readings?to=9999-12-31&format=json');
+		expect(readings.status).toBe(400);
+		expect(JSON.parse(readings.text).message).toBe('to must be a day between 1900-01-01 and 2999-12-31');
+
+		const sums = await fetch(`${baseURL}/api/v1/stats/describe`, { method: 'POST', headers: { ...bearer, 'content-type': 'application/json' }, body: '[1e308,-1e308,1e308]' });
+		expect(sums.status).toBe(400);
+		expect((await sums.json()).message).toBe('body: values are too large to sum: keep them within 1e+150 of each other and their total finite');
 	});
 });
