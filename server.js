@@ -158,13 +158,19 @@ class BodyReader extends Readable {
 		const onClose = () => {
 			if (!req.complete) this.destroy(new Error('The connection closed before the body was complete.'));
 		};
+		// Answered before the body was read to its end (a 405, a 403 of the guard…): drop the rest.
+		const onFinish = () => {
+			if (!req.complete && !this.destroyed) this.destroy();
+		};
 		req.on('data', onData);
 		req.once('end', onEnd);
 		req.once('close', onClose);
+		res.once('finish', onFinish);
 		this.detach = () => {
 			req.off('data', onData);
 			req.off('end', onEnd);
 			req.off('close', onClose);
+			res.off('finish', onFinish);
 		};
 	}
 
