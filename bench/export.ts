@@ -4,7 +4,7 @@
 // and a build of the app. Steps:
 //   1. seed the demo generator scaled to BENCH_READINGS readings (default 1,000,000) in one shop,
 //      as bench:stats does (bench/seed.ts);
-//   2. for each format, start `node build` afresh (so its peak RSS belongs to that export alone),
+//   2. for each format, start `node server.js` afresh (so its peak RSS belongs to that export alone),
 //      download the whole export with the demo engineer's API token, counting rows and bytes as
 //      they arrive, and read the server's peak RSS (VmHWM in /proc/<pid>/status);
 //   3. check the row count against SQL, and that the JSON array is closed.
@@ -48,7 +48,7 @@ function peakRssMb(pid: number): { peak: number; now: number } {
 }
 
 async function startServer() {
-	const server = spawn('node', ['build'], {
+	const server = spawn('node', ['server.js'], {
 		env: { ...process.env, NODE_OPTIONS: serverNodeOptions, DATABASE_URL: url, PORT: String(port), HOST: '127.0.0.1', ORIGIN: `http://127.0.0.1:${port}`, AUTH_SECRET: randomBytes(32).toString('hex') },
 		stdio: ['ignore', 'ignore', 'inherit']
 	});

@@ -74,7 +74,7 @@ async function writeWide(path: string) {
 }
 
 function startServer(port: number) {
-	const server = spawn('node', ['build'], {
+	const server = spawn('node', ['server.js'], {
 		env: { ...process.env, PORT: String(port), HOST: '127.0.0.1', ORIGIN: `http://127.0.0.1:${port}`, BODY_SIZE_LIMIT: 'Infinity', LAPMARK_UPLOAD_LIMIT_MB: '2000' },
 		stdio: ['ignore', 'ignore', 'inherit']
 	});

@@ -4,7 +4,7 @@
 // and a build of the app. Steps:
 //   1. migrate and seed the same demo `npm start` seeds (VACUUM ANALYZE included), unless the
 //      database already holds it (KEEP_BENCH_DB=1 on an earlier run);
-//   2. start `node build` on BENCH_PORT (default 3320) and sign in as the demo owner in Debian's
+//   2. start `node server.js` on BENCH_PORT (default 3320) and sign in as the demo owner in Debian's
 //      chromium (playwright-core);
 //   3. BENCH_RUNS times (default 7), in a fresh browser context each (nothing cached), open `/`
 //      and time until every figure, chart and list has settled; count the JavaScript the page
@@ -53,7 +53,7 @@ if (shopsThere > 0) {
 }
 await sql.end();
 
-const server = spawn('node', ['build'], {
+const server = spawn('node', ['server.js'], {
 	env: { ...process.env, DATABASE_URL: url, PORT: String(port), HOST: '127.0.0.1', ORIGIN: base, AUTH_SECRET: process.env.AUTH_SECRET ?? randomBytes(24).toString('hex') },
 	stdio: ['ignore', 'ignore', 'inherit']
 });

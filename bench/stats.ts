@@ -8,7 +8,7 @@
 //      with BENCH_REUSE=1, keep the readings a KEEP_BENCH_DB=1 run left instead;
 //   2. check the summaries against a full recomputation, and the hand-written summary SQL of
 //      step 4 against the raw SQL;
-//   3. start `node build` on BENCH_PORT (default 3310) and time each route over HTTP with the
+//   3. start `node server.js` on BENCH_PORT (default 3310) and time each route over HTTP with the
 //      demo owner's API token, median of BENCH_RUNS (default 20), in BENCH_BLOCKS (default 4)
 //      blocks alternating with those of step 4; the server is first warmed with BENCH_WARMUP
 //      (default 40) untimed requests to each route, as a server that has been up a while is (its
@@ -321,7 +321,7 @@ function psqlTimes(query: string, opts: { runs?: number; scope?: 'shop' | 'syste
 }
 const psqlMedian = (query: string, opts: { runs?: number; scope?: 'shop' | 'system' } = {}) => median(psqlTimes(query, opts));
 
-const server = spawn('node', ['build'], {
+const server = spawn('node', ['server.js'], {
 	env: {
 		...process.env,
 		DATABASE_URL: url,

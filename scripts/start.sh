@@ -39,7 +39,7 @@ fi
 export PORT HOST=${HOST:-127.0.0.1} ORIGIN=${ORIGIN:-http://localhost:$PORT} BODY_SIZE_LIMIT=Infinity LAPMARK_DEMO
 # The web server, kept running by the supervisor: a crash or a kill of the server restarts it
 # within seconds and leaves the database up. WEB_CMD names the server's command.
-WEB_CMD=${WEB_CMD:-node build} bash scripts/supervise.sh &
+WEB_CMD=${WEB_CMD:-node server.js} bash scripts/supervise.sh &
 WEB_PID=$!
 for _ in $(seq 1 100); do pg_port_taken "$PORT" && break; sleep 0.1; done
 

@@ -1,12 +1,12 @@
 #!/usr/bin/env bash
-# Keeps the web server running: starts WEB_CMD (default `node build`), and when it exits without
+# Keeps the web server running: starts WEB_CMD (default `node server.js`), and when it exits without
 # being asked to (a crash, a kill), starts it again after a short pause (1 s, growing to 10 s
 # while it keeps dying within 10 s of its start). SIGTERM or SIGINT stops the server (SIGTERM,
 # then SIGKILL after 8 s) and then this script. `npm start` runs the web server through it.
 #
-#   WEB_CMD="node build" bash scripts/supervise.sh
+#   WEB_CMD="node server.js" bash scripts/supervise.sh
 set -uo pipefail
-WEB_CMD=${WEB_CMD:-node build}
+WEB_CMD=${WEB_CMD:-node server.js}
 CHILD=
 STOPPING=
 

@@ -104,7 +104,7 @@ describe('/dev/mail in a production start', () => {
 		const port = Number(process.env.LAPMARK_TEST_PORT ?? 3100) + 60;
 		const base = `http://127.0.0.1:${port}`;
 		// The fake's folder stays in the environment: even so, no reader without demo mode.
-		const child = spawn('node', ['build'], {
+		const child = spawn('node', ['server.js'], {
 			env: { ...process.env, PORT: String(port), HOST: '127.0.0.1', ORIGIN: base, LAPMARK_DEMO: '0', SMTP_URL: process.env.SMTP_URL },
 			stdio: 'ignore'
 		});

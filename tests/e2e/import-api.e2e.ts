@@ -141,7 +141,7 @@ describe('POST /api/v1/imports', () => {
 	it('keeps nothing when the server process is killed mid-import (kill -9)', async () => {
 		const port = Number(process.env.LAPMARK_TEST_KILL_PORT ?? 3190);
 		const base = `http://127.0.0.1:${port}`;
-		const child = spawn('node', ['build'], {
+		const child = spawn('node', ['server.js'], {
 			env: { ...process.env, PORT: String(port), HOST: '127.0.0.1', ORIGIN: base, BODY_SIZE_LIMIT: 'Infinity' },
 			stdio: 'ignore'
 		});

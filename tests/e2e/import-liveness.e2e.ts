@@ -35,7 +35,7 @@ describe('the watch for dead imports', () => {
 	it('marks a running batch with a heartbeat older than 30 s failed within a minute, and leaves a live one', async () => {
 		const port = Number(process.env.LAPMARK_TEST_PORT ?? 3100) + 61;
 		const base = `http://127.0.0.1:${port}`;
-		const child = spawn('node', ['build'], {
+		const child = spawn('node', ['server.js'], {
 			env: { ...process.env, PORT: String(port), HOST: '127.0.0.1', ORIGIN: base, LAPMARK_IMPORT_WATCH_MS: '500' },
 			stdio: 'ignore'
 		});

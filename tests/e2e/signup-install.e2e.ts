@@ -146,7 +146,7 @@ describe('public sign-up turned off (LAPMARK_PUBLIC_SIGNUP=0)', () => {
 
 	beforeAll(async () => {
 		expect(await portFree(closedPort), `port ${closedPort} must be free`).toBe(true);
-		const child = spawn('node', ['build'], {
+		const child = spawn('node', ['server.js'], {
 			cwd: root,
 			env: childEnv({ PORT: String(closedPort), HOST: '127.0.0.1', ORIGIN: base, BODY_SIZE_LIMIT: 'Infinity', LAPMARK_PUBLIC_SIGNUP: '0' }),
 			stdio: ['ignore', 'inherit', 'inherit'],

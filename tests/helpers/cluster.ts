@@ -107,11 +107,11 @@ export interface AppServer {
 	stop(): Promise<void>;
 }
 
-/** The built app (`node build`) on its own port against the given database. */
+/** The built app (`node server.js`) on its own port against the given database. */
 export async function startApp(databaseUrl: string): Promise<AppServer> {
 	const port = await freePort();
 	const baseURL = `http://127.0.0.1:${port}`;
-	const child = spawn('node', ['build'], {
+	const child = spawn('node', ['server.js'], {
 		cwd: REPO,
 		env: { ...process.env, DATABASE_URL: databaseUrl, PORT: String(port), HOST: '127.0.0.1', ORIGIN: baseURL, LAPMARK_DEMO: '1' },
 		stdio: ['ignore', 'pipe', 'pipe']

@@ -1,4 +1,4 @@
-// Starts the built app (`node build`) against the test database for the browser tests.
+// Starts the built app (`node server.js`, the entry around build/handler.js) against the test database for the browser tests.
 import { spawn, type ChildProcess } from 'node:child_process';
 import type { TestProject } from 'vitest/node';
 
@@ -13,7 +13,7 @@ let server: ChildProcess | null = null;
 export default async function setup(project: TestProject) {
 	const port = Number(process.env.LAPMARK_TEST_PORT ?? 3100);
 	const baseURL = `http://127.0.0.1:${port}`;
-	server = spawn('node', ['build'], {
+	server = spawn('node', ['server.js'], {
 		env: { ...process.env, PORT: String(port), HOST: '127.0.0.1', ORIGIN: baseURL, BODY_SIZE_LIMIT: 'Infinity', LAPMARK_DEMO: '1' },
 		stdio: ['ignore', 'inherit', 'inherit']
 	});

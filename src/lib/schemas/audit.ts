@@ -1,12 +1,13 @@
 import { z } from 'zod';
+import { calendarDay, text } from './text';
 
-const day = z.string().regex(/^\d{4}-\d{2}-\d{2}$/, 'Use a date like 2026-01-31.');
+const day = (name: string) => calendarDay(name);
 export const auditFilterSchema = z.object({
-	entity: z.string().max(40).optional(),
+	entity: text('entity').max(40, 'entity is at most 40 characters').optional(),
 	action: z.enum(['create', 'update', 'delete', 'undo', 'override', 'revoke', 'import']).optional(),
-	actor: z.string().max(120).optional(),
-	from: day.optional(),
-	to: day.optional(),
+	actor: text('actor').max(120, 'actor is at most 120 characters').optional(),
+	from: day('from').optional(),
+	to: day('to').optional(),
 	page: z.coerce.number().int().min(1).max(100_000).default(1)
 });
 export type AuditFilterInput = z.infer<typeof auditFilterSchema>;

@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { sitePath } from './text';
 
 /** E-mail addresses as people type them: trimmed, lower-cased, at most 254 characters (RFC 5321). */
 export const emailSchema = z
@@ -22,10 +23,9 @@ export const newPasswordSchema = z
 export const passwordSignIn = z.object({ email: emailSchema, password: passwordSchema });
 export const linkSignIn = z.object({ email: emailSchema });
 
-/** Where to go after signing in: only paths on this site. */
+/** Where to go after signing in: only paths on this site (see sitePath), else `fallback`. */
 export function safeRedirect(value: unknown, fallback = '/'): string {
-	const s = typeof value === 'string' ? value : '';
-	return s.startsWith('/') && !s.startsWith('//') && !s.startsWith('/\\') ? s : fallback;
+	return sitePath(value) ?? fallback;
 }
 
 export function fieldErrors(error: z.ZodError): Record<string, string> {

@@ -1,10 +1,10 @@
 // Inputs of families, limit versions, seal pass marks and the gauge register.
 import { z } from 'zod';
+import { calendarDay, text } from './text';
 import { MEASUREMENTS, STAGES } from '$lib/measurements';
 
-const day = z.string().regex(/^\d{4}-\d{2}-\d{2}$/, 'Use a date like 2026-01-31.').refine((s) => !Number.isNaN(Date.parse(`${s}T00:00:00Z`)), 'That date does not exist.');
-const decimalText = z
-	.string()
+const day = calendarDay();
+const decimalText = text()
 	.trim()
 	.max(20, 'That is too long for a number.')
 	.refine((s) => s === '' || /^(\d+([.,]\d*)?|[.,]\d+)$/.test(s), 'Type a number with digits and one decimal point.')
@@ -13,11 +13,10 @@ const count = (what: string, lo: number, hi: number) =>
 	z.coerce.number({ message: `Type the number of ${what}.` }).int(`Whole ${what} only.`).min(lo, `At least ${lo}.`).max(hi, `At most ${hi}.`);
 
 export const familySchema = z.object({
-	code: z
-		.string()
+	code: text()
 		.trim()
 		.regex(/^[A-Za-z0-9][A-Za-z0-9._-]{0,31}$/, 'Letters, digits, dot, dash or underscore, starting with a letter or digit; 32 characters at most.'),
-	description: z.string().trim().max(200, 'At most 200 characters.').default(''),
+	description: text(undefined, { multiline: true }).trim().max(200, 'At most 200 characters.').default(''),
 	cylinders: count('cylinders', 1, 16),
 	intakeValves: count('intake valves per cylinder', 1, 3),
 	exhaustValves: count('exhaust valves per cylinder', 1, 3),
@@ -36,7 +35,7 @@ export const limitSchema = z
 		min: decimalText,
 		max: decimalText,
 		effectiveFrom: day,
-		note: z.string().trim().max(200, 'At most 200 characters.').default('')
+		note: text(undefined, { multiline: true }).trim().max(200, 'At most 200 characters.').default('')
 	})
 	.superRefine((v, ctx) => {
 		if (v.min === null && v.max === null) ctx.addIssue({ code: 'custom', path: ['min'], message: 'Give a minimum, a maximum or both.' });
@@ -61,9 +60,9 @@ export const INSTRUMENT_KIND_LABEL: Record<string, string> = {
 };
 
 export const instrumentSchema = z.object({
-	name: z.string().trim().min(1, 'Name the gauge.').max(120, 'At most 120 characters.'),
+	name: text().trim().min(1, 'Name the gauge.').max(120, 'At most 120 characters.'),
 	kind: z.enum(Object.keys(INSTRUMENT_KIND_LABEL) as [string, ...string[]], { message: 'Choose a kind.' }),
-	serial: z.string().trim().min(1, 'Type the gauge’s serial number.').max(64, 'At most 64 characters.'),
+	serial: text().trim().min(1, 'Type the gauge’s serial number.').max(64, 'At most 64 characters.'),
 	resolution: decimalText,
 	resolutionUnit: z.enum(['mm', 'in', 'um'], { message: 'Choose mm, in or µm.' }),
 	calibratedOn: day,
@@ -74,7 +73,7 @@ export const calibrationSchema = z.object({
 	id: z.uuid({ message: 'Unknown gauge.' }),
 	calibratedOn: day,
 	intervalDays: z.coerce.number({ message: 'Type the interval in days.' }).int('Whole days.').min(1, 'At least 1 day.').max(3650, 'At most 3650 days.'),
-	note: z.string().trim().max(200, 'At most 200 characters.').default('')
+	note: text(undefined, { multiline: true }).trim().max(200, 'At most 200 characters.').default('')
 });
 
 export const retireSchema = z.object({ id: z.uuid({ message: 'Unknown gauge.' }), retired: z.enum(['yes', 'no']) });

@@ -1,5 +1,6 @@
 // Inputs of the head workflow: the list's query string, intake, decisions, release, comebacks.
 import { z } from 'zod';
+import { calendarDay, text } from './text';
 import { DECISION_KINDS, DISTANCE_UNITS, PRESSURE_UNITS } from '$lib/measurements';
 import { parsePosKey } from '$lib/inspection';
 
@@ -21,18 +22,17 @@ export const LEAK_PATH_LABEL: Record<(typeof LEAK_PATHS)[number], string> = {
 };
 export { DECISION_KINDS };
 
-const day = z.string().regex(/^\d{4}-\d{2}-\d{2}$/, 'Use a date like 2026-01-31.').refine((s) => !Number.isNaN(Date.parse(`${s}T00:00:00Z`)), 'That date does not exist.');
+const day = calendarDay();
 const uuid = (message: string) => z.uuid({ message });
 /** A decimal as typed: digits with one point or comma; empty means "not given". */
-const decimalText = z
-	.string()
+const decimalText = text()
 	.trim()
 	.max(20, 'That is too long for a number.')
 	.refine((s) => s === '' || /^(\d+([.,]\d*)?|[.,]\d+)$/.test(s), 'Type a number with digits and one decimal point.')
 	.transform((s) => (s === '' ? null : Number(s.replace(',', '.'))));
 
 export const headFilterSchema = z.object({
-	q: z.string().trim().max(100).optional(),
+	q: text('q').trim().max(100, 'q is at most 100 characters').optional(),
 	family: z.uuid({ message: 'Unknown family.' }).optional(),
 	status: z.enum(HEAD_STATUSES, { message: 'Unknown status.' }).optional(),
 	from: day.optional(),
@@ -56,9 +56,8 @@ export const intakeSchema = z
 			.max(64, 'At most 64 characters.')
 			.regex(/^[^\p{Cc}]+$/u, 'Use letters, digits and punctuation only.'),
 		familyId: uuid('Choose the engine family.'),
-		customer: z.string().trim().min(1, 'Name the customer (a garage, a fleet or a person).').max(120, 'At most 120 characters.'),
-		customerEmail: z
-			.string()
+		customer: text().trim().min(1, 'Name the customer (a garage, a fleet or a person).').max(120, 'At most 120 characters.'),
+		customerEmail: text()
 			.trim()
 			.toLowerCase()
 			.max(254, 'That address is too long.')
@@ -67,7 +66,7 @@ export const intakeSchema = z
 		receivedOn: day,
 		usageUnit: z.enum([...DISTANCE_UNITS, 'h'], { message: 'Choose km, miles or hours.' }),
 		usage: decimalText,
-		complaint: z.string().trim().max(2000, 'At most 2000 characters.').default(''),
+		complaint: text(undefined, { multiline: true }).trim().max(2000, 'At most 2000 characters.').default(''),
 		leakMode: z.enum(['pct', 'pressure'], { message: 'Choose how the leakage was written down.' }),
 		pressureUnit: z.enum(PRESSURE_UNITS, { message: 'Choose the gauge’s pressure unit.' })
 	})
@@ -89,18 +88,18 @@ export const leakRowSchema = z.object({
 // ---------------------------------------------------------------------------------------------
 // Decisions, release, comebacks, report
 
-const posKey = z.string().refine((s) => parsePosKey(s) !== null, 'Unknown valve position.');
+const posKey = text().refine((s) => parsePosKey(s) !== null, 'Unknown valve position.');
 
 export const decideSchema = z.object({
 	pos: posKey,
 	kind: z.enum(DECISION_KINDS, { message: 'Choose what to do with this position.' }),
-	note: z.string().trim().max(500, 'At most 500 characters.').default(''),
+	note: text(undefined, { multiline: true }).trim().max(500, 'At most 500 characters.').default(''),
 	acknowledge: z.literal('on').optional()
 });
 
 export const releaseSchema = z.object({
 	override: z.literal('on').optional(),
-	reason: z.string().trim().max(2000, 'At most 2000 characters.').default('')
+	reason: text(undefined, { multiline: true }).trim().max(2000, 'At most 2000 characters.').default('')
 });
 
 export const comebackSchema = z
@@ -108,7 +107,7 @@ export const comebackSchema = z
 		returnedOn: day,
 		usageUnit: z.enum([...DISTANCE_UNITS, 'h'], { message: 'Choose km, miles or hours.' }),
 		usage: decimalText,
-		whatFailed: z.string().trim().min(3, 'Say what failed (a few words at least).').max(2000, 'At most 2000 characters.'),
+		whatFailed: text(undefined, { multiline: true }).trim().min(3, 'Say what failed (a few words at least).').max(2000, 'At most 2000 characters.'),
 		positions: z.array(posKey).max(48)
 	})
 	.superRefine((v, ctx) => {

@@ -1,6 +1,7 @@
 // Query strings and bodies of the statistics API (/api/v1/stats/*, /api/v1/check). Shared by
 // client and server: the charts build their URLs from the same names.
 import { z } from 'zod';
+import { calendarDay, text } from './text';
 import { DECISION_KINDS, MEASUREMENTS, SIDES, STAGES, isUnit, type DecisionKind, type Measurement, type Unit } from '../measurements';
 
 /** Decision kinds, the same list as the database's decision_kind enum. */
@@ -14,27 +15,17 @@ export const WEAR_MAX_POINTS = 5000;
 
 const list = (xs: readonly string[]) => xs.join(', ');
 
-const familyCode = z
-	.string()
+const familyCode = text('family')
 	.trim()
 	.regex(/^[A-Za-z0-9][A-Za-z0-9._-]{0,31}$/, 'family must be an engine family code, such as ALDER-4');
 const measurement = z.enum(MEASUREMENTS, { message: `measurement must be one of: ${list(MEASUREMENTS)}` });
 const side = z.enum(SIDES, { message: `side must be one of: ${list(SIDES)}` });
 const stage = z.enum(STAGES, { message: `stage must be one of: ${list(STAGES)}` });
 
-function validDay(s: string): boolean {
-	const d = new Date(`${s}T00:00:00Z`);
-	return !Number.isNaN(d.getTime()) && d.toISOString().slice(0, 10) === s;
-}
-const day = (name: string) =>
-	z
-		.string()
-		.regex(/^\d{4}-\d{2}-\d{2}$/, `${name} must be a date like 2026-01-31`)
-		.refine(validDay, `${name} is not a calendar date`);
+const day = (name: string) => calendarDay(name);
 
 export const wholeNumber = (name: string, max: number) =>
-	z
-		.string()
+	text(name)
 		.trim()
 		.regex(/^\d+$/, `${name} must be a whole number`)
 		.transform(Number)
@@ -42,8 +33,7 @@ export const wholeNumber = (name: string, max: number) =>
 
 /** A decimal number as typed (a point, not a comma), finite. */
 const decimal = (name: string) =>
-	z
-		.string()
+	text(name)
 		.trim()
 		.regex(/^[+-]?(\d+(\.\d*)?|\.\d+)([eE][+-]?\d+)?$/, `${name} must be a number, such as 0.065`)
 		.transform(Number)
@@ -59,9 +49,9 @@ export const filterShape = {
 	/** Last day (UTC) of measured_at, inclusive. */
 	to: day('to').optional(),
 	/** Who measured (readings.measured_by), case-insensitive. */
-	machinist: z.string().trim().min(1).max(120, 'machinist is at most 120 characters').optional(),
+	machinist: text('machinist').trim().min(1).max(120, 'machinist is at most 120 characters').optional(),
 	/** The head's customer, case-insensitive. */
-	customer: z.string().trim().min(1).max(200, 'customer is at most 200 characters').optional(),
+	customer: text('customer').trim().min(1).max(200, 'customer is at most 200 characters').optional(),
 	mileageMin: wholeNumber('mileageMin', 5_000_000).optional(),
 	mileageMax: wholeNumber('mileageMax', 5_000_000).optional()
 };
@@ -94,8 +84,7 @@ export const checkQuerySchema = z
 		stage: stage.default('as_received'),
 		measurement,
 		value: decimal('value'),
-		unit: z
-			.string()
+		unit: text('unit')
 			.trim()
 			.refine(isUnit, 'unit must be one of: mm, in, um, uin, pct, s')
 			.transform((u) => u as Unit)
@@ -125,7 +114,7 @@ export type OutliersQuery = z.infer<typeof outliersQuerySchema>;
 /** What a failure is: a measurement outside its limits, or a decision of one kind. */
 export type RateCheck = { kind: 'measurement'; measurement: Measurement } | { kind: 'decision'; decision: DecisionKindName };
 
-const rateCheck = z.string().trim().transform((s, ctx): RateCheck => {
+const rateCheck = text('check').trim().transform((s, ctx): RateCheck => {
 	if ((MEASUREMENTS as readonly string[]).includes(s)) return { kind: 'measurement', measurement: s as Measurement };
 	const m = /^decision:(\w+)$/.exec(s);
 	if (m && (DECISION_KIND_NAMES as readonly string[]).includes(m[1])) return { kind: 'decision', decision: m[1] as DecisionKindName };

@@ -12,6 +12,13 @@ describe('input checks', () => {
 		expect(() => finiteArray([1, Number.NaN])).toThrow(RangeError);
 		expect(() => finiteArray([Number.POSITIVE_INFINITY])).toThrow(RangeError);
 	});
+	it('rejects finite values whose sums overflow', () => {
+		// IEEE 754 doubles: 1e308 − (−1e308) is Infinity, so the range and the variance would be too
+		expect(() => finiteArray([1e308, -1e308, 1e308])).toThrow(/too large to sum/);
+		expect(() => finiteArray([1e200, 1e200])).not.toThrow();
+		expect(() => finiteArray([1e200, -1e200])).toThrow(RangeError);
+		expect(finiteArray([1e-300, -1e-300])).toEqual([1e-300, -1e-300]);
+	});
 	it('sorts numerically, not as strings', () => {
 		// Definition: JavaScript's default sort would put 10 before 9
 		expect(sortedCopy([10, 9, -1, 2])).toEqual([-1, 2, 9, 10]);

@@ -16,7 +16,32 @@ export function finiteArray(values: Values, what = 'values'): number[] {
 		}
 		out[i] = v;
 	}
+	assertFiniteSums(out, what);
 	return out;
+}
+
+/** Largest spread the moments can square and sum over a million values without overflow. */
+export const MAX_SPREAD = 1e150;
+
+/**
+ * Throws a RangeError when the sum of `values`, their spread (max − min) or its square times
+ * the count is not finite: [1e308, -1e308, 1e308] are each finite, yet their mean, range and
+ * variance overflow to Infinity or NaN.
+ */
+export function assertFiniteSums(values: readonly number[], what = 'values'): void {
+	let sum = 0;
+	let min = Infinity;
+	let max = -Infinity;
+	for (const v of values) {
+		sum += v;
+		if (v < min) min = v;
+		if (v > max) max = v;
+	}
+	if (values.length === 0) return;
+	const spread = max - min;
+	if (!Number.isFinite(sum) || !Number.isFinite(spread) || !Number.isFinite(spread * spread * values.length) || spread > MAX_SPREAD) {
+		throw new RangeError(`${what} are too large to sum: keep them within ${MAX_SPREAD} of each other and their total finite`);
+	}
 }
 
 /** Ascending numeric sort of a copy (never the default string sort). */

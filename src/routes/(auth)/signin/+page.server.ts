@@ -1,4 +1,4 @@
-import { fail, redirect } from '@sveltejs/kit';
+import { error, fail, redirect } from '@sveltejs/kit';
 import { requestSignInLink, signInVerified } from '../../../auth';
 import { fieldErrors, linkSignIn, passwordSignIn, safeRedirect } from '$lib/schemas/auth';
 import { verifyPassword } from '$lib/server/auth/passwords';
@@ -8,7 +8,19 @@ import { users } from '$lib/server/db/schema';
 import { eq } from 'drizzle-orm';
 import { publicSignup } from '$lib/server/env';
 import { noShopsYet } from '$lib/server/services/signup';
+import { sitePath } from '$lib/schemas/text';
 import type { Actions, PageServerLoad } from './$types';
+
+/** `redirectTo` (or Auth.js's `callbackUrl`, possibly a full address on this site) as a path
+ * here; anything else is a 400 that names it, never a redirect off the site. */
+function redirectParam(url: URL): string {
+	const name = url.searchParams.has('redirectTo') ? 'redirectTo' : 'callbackUrl';
+	let value = url.searchParams.get(name);
+	if (value === null || value === '') return '/';
+	if (value.startsWith(url.origin + '/')) value = value.slice(url.origin.length);
+	if (sitePath(value) === null) error(400, `${name} must be a path on this site, such as /heads`);
+	return safeRedirect(value);
+}
 
 /** Messages for the errors Auth.js reports back in the URL; none says whether an address exists. */
 const AUTH_ERRORS: Record<string, string> = {
@@ -20,7 +32,7 @@ const AUTH_ERRORS: Record<string, string> = {
 };
 
 export const load: PageServerLoad = async (event) => {
-	const redirectTo = safeRedirect(event.url.searchParams.get('redirectTo') ?? event.url.searchParams.get('callbackUrl'));
+	const redirectTo = redirectParam(event.url);
 	if (event.locals.actor) redirect(303, redirectTo);
 	const code = event.url.searchParams.get('error');
 	return {

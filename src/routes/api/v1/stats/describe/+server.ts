@@ -17,5 +17,11 @@ export const POST: RequestHandler = async (event) => {
 	if (Array.isArray(body) && body.length > DESCRIBE_MAX_VALUES) error(413, `${TOO_MANY} This one has ${body.length}.`);
 	const values = describeBodySchema.safeParse(body);
 	if (!values.success) error(400, issuesMessage(values.error.issues));
-	return json(describeValues(values.data));
+	try {
+		return json(describeValues(values.data));
+	} catch (e) {
+		// assertFiniteSums (stats/input.ts): each number is finite, but their sums are not.
+		if (e instanceof RangeError) error(400, `body: ${e.message}`);
+		throw e;
+	}
 };
