@@ -15,18 +15,19 @@ import { Client } from '../helpers/http';
 import { firstLink, waitForMail } from '../helpers/mail';
 
 const root = fileURLToPath(new URL('../..', import.meta.url));
-const basePort = Number(process.env.LAPMARK_TEST_PORT ?? 3100);
-const freshPort = basePort + 1;
-const closedPort = basePort + 2;
 const freshDb = `${process.env.LAPMARK_TEST_DB ?? 'lapmark_test'}_fresh`;
 const { sql } = testDb();
 const children: ChildProcess[] = [];
 
-function portFree(port: number): Promise<boolean> {
-	return new Promise((resolve) => {
+/** A port nobody listens on now (other checkouts test on this machine at the same time). */
+function freePort(): Promise<number> {
+	return new Promise((resolve, reject) => {
 		const s = createServer();
-		s.once('error', () => resolve(false));
-		s.listen(port, '127.0.0.1', () => s.close(() => resolve(true)));
+		s.once('error', reject);
+		s.listen(0, '127.0.0.1', () => {
+			const port = (s.address() as { port: number }).port;
+			s.close(() => resolve(port));
+		});
 	});
 }
 
@@ -85,11 +86,12 @@ afterAll(async () => {
 const signupForm = (email: string, shopName: string) => ({ ownerName: 'First Owner', email, password: 'first shop password', shopName, lengthUnit: 'mm', distanceUnit: 'km', currency: 'GBP' });
 
 describe.skipIf(Boolean(process.env.TEST_DATABASE_URL))('LAPMARK_DEMO=0 npm start on an empty database', () => {
-	const base = `http://127.0.0.1:${freshPort}`;
+	let base = '';
 	let fresh: postgres.Sql;
 
 	beforeAll(async () => {
-		expect(await portFree(freshPort), `port ${freshPort} must be free`).toBe(true);
+		const freshPort = await freePort();
+		base = `http://127.0.0.1:${freshPort}`;
 		pgAdmin(`pg_drop_database ${freshDb} >/dev/null`);
 		const child = spawn('bash', ['scripts/start.sh'], {
 			cwd: root,
@@ -142,10 +144,11 @@ describe.skipIf(Boolean(process.env.TEST_DATABASE_URL))('LAPMARK_DEMO=0 npm star
 });
 
 describe('public sign-up turned off (LAPMARK_PUBLIC_SIGNUP=0)', () => {
-	const base = `http://127.0.0.1:${closedPort}`;
+	let base = '';
 
 	beforeAll(async () => {
-		expect(await portFree(closedPort), `port ${closedPort} must be free`).toBe(true);
+		const closedPort = await freePort();
+		base = `http://127.0.0.1:${closedPort}`;
 		const child = spawn('node', ['server.js'], {
 			cwd: root,
 			env: childEnv({ PORT: String(closedPort), HOST: '127.0.0.1', ORIGIN: base, BODY_SIZE_LIMIT: 'Infinity', LAPMARK_PUBLIC_SIGNUP: '0' }),
