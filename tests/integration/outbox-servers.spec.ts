@@ -41,7 +41,16 @@ describe('mail outbox on two servers', () => {
 		for (const w of workers) w.go();
 		const [a, b] = await Promise.all(workers.map((w) => w.done));
 
-		const received = (await listFakeMail(process.env.LAPMARK_MAIL_DIR!)).filter((m) => m.subject.startsWith(`Outbox ${run} #`));
+		// Another server on this database (the browser tests' app, whose retry loop runs too) may
+		// have claimed a few and still be sending them when both workers are done: wait, bounded,
+		// until every row is marked sent and the fake server has written what it received.
+		const ours = async () => (await listFakeMail(process.env.LAPMARK_MAIL_DIR!)).filter((m) => m.subject.startsWith(`Outbox ${run} #`));
+		for (let deadline = Date.now() + 30_000; Date.now() < deadline; ) {
+			const [{ unsent }] = await sql<{ unsent: number }[]>`select count(*)::int as unsent from mail_outbox where subject like ${`Outbox ${run} #%`} and sent_at is null`;
+			if (unsent === 0 && (await ours()).length >= n) break;
+			await new Promise((r) => setTimeout(r, 200));
+		}
+		const received = await ours();
 		const perSubject = new Map<string, number>();
 		for (const m of received) perSubject.set(m.subject, (perSubject.get(m.subject) ?? 0) + 1);
 		expect(received.length).toBe(n);
