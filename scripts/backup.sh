@@ -20,13 +20,7 @@ if [ -n "${DATABASE_URL:-}" ]; then
 	exit 1
 fi
 
-STAGE=$(mktemp -d)
-STARTED=
-cleanup() {
-	rm -rf "$STAGE"
-	if [ "$STARTED" = 1 ]; then pg_stop; fi
-}
-trap cleanup EXIT
+scratch_folder_and_cleanup
 
 ROOT=$(pg_data_root)
 if [ ! -f "$ROOT/pg/PG_VERSION" ]; then log "backup: no database in $ROOT (nothing to back up)"; exit 1; fi

@@ -62,3 +62,11 @@ start_mail_fake() {
 	log "the fake mail server did not start"
 	return 1
 }
+
+# For backup and restore: a scratch folder STAGE removed on exit, and the private PostgreSQL
+# stopped on exit when the caller started it (it sets STARTED=1 then).
+scratch_folder_and_cleanup() {
+	STAGE=$(mktemp -d)
+	STARTED=
+	trap 'rm -rf "$STAGE"; if [ "$STARTED" = 1 ]; then pg_stop; fi' EXIT
+}

@@ -21,13 +21,7 @@ for d in "$ROOT" "$STATE_DIR"; do
 	fi
 done
 
-STAGE=$(mktemp -d)
-STARTED=
-cleanup() {
-	rm -rf "$STAGE"
-	if [ "$STARTED" = 1 ]; then pg_stop; fi
-}
-trap cleanup EXIT
+scratch_folder_and_cleanup
 
 tar -C "$STAGE" -xf "$FILE" MANIFEST database.dump secrets/db-password 2>/dev/null ||
 	{ log "restore: $FILE is not a Lapmark backup (it lacks MANIFEST, database.dump or secrets/db-password)"; exit 1; }
