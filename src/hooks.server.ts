@@ -1,30 +1,26 @@
-import { error, json, type Handle, type HandleServerError } from '@sveltejs/kit';
+import { error, json, type Handle, type HandleServerError, type ServerInit } from '@sveltejs/kit';
 import { sequence } from '@sveltejs/kit/hooks';
 import { handle as authHandle } from './auth';
 import { POLICY, operationOf } from '$lib/server/auth/access';
 import { actorFromBearer, actorFromSession } from '$lib/server/auth/actor';
 import { requireRole, requireUser } from '$lib/server/auth/guards';
-import { db, isDatabaseUnavailable, sql } from '$lib/server/db';
+import { isDatabaseUnavailable, sql } from '$lib/server/db';
 import { DATABASE_DOWN_MESSAGE, DATABASE_RETRY_SECONDS } from '$lib/database-down';
-import { startImportWatch, stopImportWatch } from '$lib/server/import';
-import { startMailRetries } from '$lib/server/mail';
-import { warmOverviews } from '$lib/server/queries/overview';
+import { appJobs, startJobs } from '$lib/server/jobs';
 import { building } from '$app/environment';
 
-startMailRetries();
-// Imports whose server died are marked failed by whichever server looks first.
-if (!building) {
-	startImportWatch();
-	process.on('sveltekit:shutdown', stopImportWatch);
-}
-// The overview's slowest figure, worked out once per shop in the background after a start.
-if (!building) setTimeout(() => void warmOverviews(db), 1000).unref();
-
-// adapter-node closes the HTTP server on SIGTERM/SIGINT, then emits this: close the database
-// pool so the process can exit.
-process.on('sveltekit:shutdown', () => {
-	void sql.end({ timeout: 5 });
-});
+/** Once per server, before the first request: the background jobs (mail retries, the watch for
+ * dead imports, the overview's warm-up), stopped again on shutdown. adapter-node closes the HTTP
+ * server on SIGTERM/SIGINT, then emits sveltekit:shutdown: close the database pool too, so the
+ * process can exit. */
+export const init: ServerInit = () => {
+	if (building) return;
+	const jobs = startJobs(appJobs());
+	process.once('sveltekit:shutdown', () => {
+		jobs.stop();
+		void sql.end({ timeout: 5 });
+	});
+};
 
 /** Password sign-in goes only through the sign-in page's action, which validates and
  * rate-limits; a direct POST to Auth.js's credentials callback is refused. */

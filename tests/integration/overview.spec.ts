@@ -5,7 +5,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { and, eq } from 'drizzle-orm';
 import { withShop } from '../../src/lib/server/db/scope';
 import { heads, limits, readings } from '../../src/lib/server/db/schema';
-import { overviewFigures } from '../../src/lib/server/queries/overview';
+import { overviewFigures } from '../../src/lib/server/services/overview';
 import { makeShop, testDb } from '../helpers/db';
 
 const { db, sql } = testDb();

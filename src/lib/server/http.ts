@@ -1,6 +1,7 @@
-// Small helpers for +server.ts handlers: parse a query string or a bounded JSON body, or answer
-// 400/413 with a message that says what to send instead.
-import { error } from '@sveltejs/kit';
+// Small helpers for routes: parse a query string or a bounded JSON body, or answer 400/413 with a
+// message that says what to send instead; and the one mapper from a DomainError to a response.
+import { error, fail, json, type ActionFailure } from '@sveltejs/kit';
+import { isDomainError, type DomainError } from './errors';
 import type { z } from 'zod';
 import { issuesMessage, queryObject } from '../schemas/stats';
 
@@ -38,5 +39,54 @@ export async function readJsonBody(request: Request, maxBytes: number, tooLarge:
 		return JSON.parse(text);
 	} catch {
 		error(400, 'The body is not valid JSON.');
+	}
+}
+
+// ---- DomainError → response: the one mapper ------------------------------------------------
+
+/** Runs `work`; a DomainError becomes SvelteKit's error page (or the API's JSON error) with its
+ * status and message. For loads and +server.ts handlers. Other errors pass through. */
+export async function orError<T>(work: () => Promise<T>): Promise<T> {
+	try {
+		return await work();
+	} catch (e) {
+		if (isDomainError(e)) error(e.status, e.message);
+		throw e;
+	}
+}
+
+/** Runs a form action's `work`; a DomainError becomes `fail(status, { message, errors, … })`
+ * with `extra` (what the form should show again) and the error's details. */
+export async function orFail<T, E extends Record<string, unknown> = Record<string, never>>(
+	work: () => Promise<T>,
+	extra?: E
+): Promise<T | ActionFailure<E & { message: string; errors: Record<string, string> } & Record<string, unknown>>> {
+	try {
+		return await work();
+	} catch (e) {
+		if (!isDomainError(e)) throw e;
+		return failWith(e, extra);
+	}
+}
+
+/** A DomainError as a form action's failure (see orFail). */
+export function failWith<E extends Record<string, unknown>>(e: DomainError, extra?: E) {
+	return fail(e.status, { ...(extra as E), ...e.details, message: e.message, errors: e.fields });
+}
+
+/** A DomainError as the API's JSON answer: `{ message, …details, errors? }` with its status. */
+export function errorJson(e: DomainError, headers?: HeadersInit): Response {
+	const body: Record<string, unknown> = { message: e.message, ...e.details };
+	if (Object.keys(e.fields).length) body.errors = e.fields;
+	return json(body, { status: e.status, headers });
+}
+
+/** Runs an API handler's `work`; a DomainError becomes errorJson. */
+export async function orErrorJson(work: () => Promise<Response>): Promise<Response> {
+	try {
+		return await work();
+	} catch (e) {
+		if (isDomainError(e)) return errorJson(e);
+		throw e;
 	}
 }

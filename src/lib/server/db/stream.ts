@@ -1,6 +1,7 @@
 // Streams rows out of one shop-scoped transaction into an HTTP response without holding them
 // in memory: the database cursor advances only as fast as the client reads.
 import type postgres from 'postgres';
+import { withShopSql } from './scope';
 
 export function streamFromShop(
 	sql: postgres.Sql,
@@ -15,16 +16,13 @@ export function streamFromShop(
 	let ready!: (it: AsyncIterator<string>) => void;
 	const started = new Promise<AsyncIterator<string>>((r) => (ready = r));
 	const done = new Promise<void>((r) => (release = r));
-	const tx = sql
-		.begin(async (t) => {
-			await t`select set_config('lapmark.shop_id', ${shopId}, true)`;
-			ready(produce(t)[Symbol.asyncIterator]());
-			await done;
-		})
-		.catch((e) => {
-			failed = e;
-			ready({ next: () => Promise.reject(e) });
-		});
+	const tx = withShopSql(sql, shopId, async (t) => {
+		ready(produce(t)[Symbol.asyncIterator]());
+		await done;
+	}).catch((e) => {
+		failed = e;
+		ready({ next: () => Promise.reject(e) });
+	});
 	return new ReadableStream<Uint8Array>({
 		async pull(controller) {
 			iterator ??= await started;

@@ -6,6 +6,7 @@ import { Readable } from 'node:stream';
 import { pipeline } from 'node:stream/promises';
 import bcrypt from 'bcryptjs';
 import type postgres from 'postgres';
+import { enterScope, withSystemSql } from '../db/scope';
 import { generateDemo, type DemoCounts, type DemoData, type DemoOptions, type DemoSignIn, type HeadRow } from './generate';
 
 export interface SeedOptions extends DemoOptions {
@@ -30,8 +31,7 @@ export interface SeedResult {
 /** True when the database holds no shop yet. */
 export async function isDatabaseEmpty(sql: postgres.Sql): Promise<boolean> {
 	// Row-level security hides every shop unless the query looks across shops.
-	return sql.begin(async (tx) => {
-		await tx`select set_config('lapmark.system', 'on', true)`;
+	return withSystemSql(sql, async (tx) => {
 		const [row] = await tx<{ empty: boolean }[]>`select not exists (select 1 from shops) as empty`;
 		return row.empty;
 	});
@@ -139,7 +139,7 @@ export async function seedDemo(sql: postgres.Sql, opts: SeedOptions): Promise<Se
 		for (const shop of data.shops) {
 			const mine = <T extends { shopId: string }>(rows: readonly T[]) => rows.filter((r) => r.shopId === shop.id);
 			// Row-level security keys on this setting; `true` keeps it local to the transaction.
-			await tx`select set_config('lapmark.shop_id', ${shop.id}, true)`;
+			await enterScope(tx, shop.id);
 			await tx`insert into shops ${tx({ id: shop.id, name: shop.name, slug: shop.slug, settings: tx.json(shop.settings) } as never)}`;
 			await insert(tx, 'memberships', data.memberships.filter((m) => m.shopId === shop.id));
 			await insert(tx, 'families', mine(data.families));

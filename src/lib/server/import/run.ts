@@ -21,6 +21,7 @@ import { v7 as uuidv7 } from 'uuid';
 import { planHeader, headerSignature, type HeaderPlan, type Layout } from './header';
 import { checkRow, type FamilyLayout, type GoodRow, type RowContext } from './rows';
 import { ImportInputError, textChunks } from './text';
+import { withShopSql, withSystemSql } from '../db/scope';
 
 export type OnReject = 'abort' | 'skip';
 export type ImportPath = 'direct-replica' | 'direct' | 'staged';
@@ -248,12 +249,6 @@ class DuplicateFile extends Error {
 	}
 }
 
-async function inShop<T>(sql: postgres.Sql, shopId: string, work: (t: postgres.TransactionSql) => Promise<T>): Promise<T> {
-	return sql.begin(async (t) => {
-		await t`select set_config('lapmark.shop_id', ${shopId}, true)`;
-		return work(t);
-	}) as Promise<T>;
-}
 
 async function loadContext(t: postgres.TransactionSql, shopId: string, decimalComma: boolean, now: Date): Promise<RowContext> {
 	const fams = await t<FamilyLayout[]>`
@@ -377,7 +372,7 @@ export async function runImport(sql: postgres.Sql, body: AsyncIterable<Uint8Arra
 	});
 
 	if (!opts.dryRun) {
-		const [b] = await inShop(sql, opts.shopId, (t) => t<{ id: string }[]>`
+		const [b] = await withShopSql(sql, opts.shopId, (t) => t<{ id: string }[]>`
 			insert into import_batches (shop_id, file_name, content_hash, layout, on_reject, status, created_by, client_ref)
 			values (${opts.shopId}, ${opts.fileName.slice(0, 255)}, '', ${layout}, ${opts.onReject}, 'running', ${opts.actor.userId}, ${opts.clientRef ?? null})
 			returning id`);
@@ -386,7 +381,7 @@ export async function runImport(sql: postgres.Sql, body: AsyncIterable<Uint8Arra
 	const heartbeat = batchId ? startHeartbeat(sql, opts.shopId, batchId) : null;
 
 	try {
-		const outcome = await inShop(sql, opts.shopId, async (t) => {
+		const outcome = await withShopSql(sql, opts.shopId, async (t) => {
 			if (batchId) await t`select pg_advisory_xact_lock(${LOCK_CLASS}, hashtext(${batchId}))`;
 			const start = await readStart(source.chunks);
 			if (start.trim() === '') throw new ImportInputError(422, 'The file is empty.');
@@ -557,13 +552,10 @@ export const STALE_SECONDS = 30;
  * whose writes nobody sees before it commits; in the shop's scope, or row-level security hides the
  * row. A renewal that fails is only late: the next one may succeed. */
 function touchBatch(sql: postgres.Sql, shopId: string, batchId: string, progressRows?: number) {
-	sql
-		.begin(async (t) => {
-			await t`select set_config('lapmark.shop_id', ${shopId}, true)`;
-			if (progressRows === undefined) await t`update import_batches set heartbeat_at = now() where id = ${batchId} and status = 'running'`;
-			else await t`update import_batches set heartbeat_at = now(), progress_rows = ${progressRows} where id = ${batchId} and status = 'running'`;
-		})
-		.catch(() => {});
+	withShopSql(sql, shopId, async (t) => {
+		if (progressRows === undefined) await t`update import_batches set heartbeat_at = now() where id = ${batchId} and status = 'running'`;
+		else await t`update import_batches set heartbeat_at = now(), progress_rows = ${progressRows} where id = ${batchId} and status = 'running'`;
+	}).catch(() => {});
 }
 
 function startHeartbeat(sql: postgres.Sql, shopId: string, batchId: string) {
@@ -585,7 +577,7 @@ function isAbort(e: unknown): boolean {
 
 async function markFailed(sql: postgres.Sql, shopId: string, batchId: string | null, message: string) {
 	if (!batchId) return;
-	await inShop(sql, shopId, (t) => t`
+	await withShopSql(sql, shopId, (t) => t`
 		update import_batches set status = 'failed', error = ${message}, finished_at = now()
 		where id = ${batchId} and status = 'running'`);
 }
@@ -962,15 +954,13 @@ async function finish(t: postgres.TransactionSql, opts: ImportOptions, info: Fin
  * (startImportWatch); it looks across shops.
  */
 export async function reapDeadImports(sql: postgres.Sql, staleSeconds = STALE_SECONDS): Promise<number> {
-	const stale = await sql.begin(async (t) => {
-		await t`select set_config('lapmark.system', 'on', true)`;
+	const stale = await withSystemSql(sql, async (t) => {
 		return t<{ id: string; shop_id: string }[]>`
 			select id, shop_id from import_batches where status = 'running' and heartbeat_at < now() - make_interval(secs => ${staleSeconds})`;
 	});
 	let reaped = 0;
 	for (const b of stale) {
-		const done = await sql.begin(async (t) => {
-			await t`select set_config('lapmark.shop_id', ${b.shop_id}, true)`;
+		const done = await withShopSql(sql, b.shop_id, async (t) => {
 			const [{ free }] = await t<{ free: boolean }[]>`select pg_try_advisory_xact_lock(${LOCK_CLASS}, hashtext(${b.id})) as free`;
 			if (!free) return 0;
 			const r = await t`

@@ -2,14 +2,14 @@
 // UTF-8; the byte order mark is dropped; a SHA-256 of the exact bytes identifies the file.
 import { createHash } from 'node:crypto';
 import type { Readable } from 'node:stream';
+import { DomainError, type RefusalStatus } from '../errors';
 
-export class ImportInputError extends Error {
-	constructor(
-		public status: number,
-		message: string,
-		public details: Record<string, unknown> = {}
-	) {
-		super(message);
+/** A file the import refuses as a whole (too large, not text, no rows): the domain's error, with
+ * the status that says which and details the answer carries (the header it read, say). */
+export class ImportInputError extends DomainError {
+	constructor(status: RefusalStatus, message: string, details: Record<string, unknown> = {}) {
+		super(status, message, {}, details);
+		this.name = 'ImportInputError';
 	}
 }
 

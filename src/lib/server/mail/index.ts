@@ -22,11 +22,7 @@ export async function sendNow(mail: OutgoingMail, conn: Conn = db) {
 	return deliverQueued([id]);
 }
 
-let timer: ReturnType<typeof setInterval> | null = null;
-export function startMailRetries(everyMs = 15_000) {
-	if (timer) return;
-	timer = setInterval(() => {
-		retryPending(db, transport, env.MAIL_FROM).catch((e) => console.error('[mail] retry failed', e));
-	}, everyMs);
-	timer.unref();
+/** Sends due messages that failed before (the jobs module runs this every 15 s). */
+export function retryMail() {
+	return retryPending(db, transport, env.MAIL_FROM);
 }

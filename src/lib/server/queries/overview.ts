@@ -1,10 +1,7 @@
 import { sql } from 'drizzle-orm';
 import { MEASUREMENTS } from '../../measurements';
-import { withShop, withSystem, type Conn } from '../db/scope';
+import type { Conn } from '../db/scope';
 import { seriesKey } from '../db/series';
-import { instrumentsDueWithin } from './instruments';
-import { listBatches } from './imports';
-import { wilson } from '../stats/rates';
 
 /** Limits with the day each version stops applying, so a reading finds the version of its day. */
 export const LIMIT_VERSIONS = sql`
@@ -30,63 +27,52 @@ export interface OverviewFigures {
 /** Every as-received series key: the index readings_series_idx narrows on these under RLS. */
 const AS_RECEIVED_KEYS = MEASUREMENTS.flatMap((m) => [seriesKey(m, 'as_received', 'intake'), seriesKey(m, 'as_received', 'exhaust')]);
 
-export async function overviewFigures(conn: Conn, shopId: string, opts: { withImports: boolean }): Promise<OverviewFigures> {
+/** Heads received and released this month, and in work now. */
+export async function headCounts(conn: Conn, shopId: string) {
 	const [heads] = await conn.execute<{ received: number; released: number; in_work: number }>(sql`
 		select
 			count(*) filter (where received_on >= date_trunc('month', current_date))::int as received,
 			count(*) filter (where released_on >= date_trunc('month', current_date))::int as released,
 			count(*) filter (where status <> 'released')::int as in_work
 		from heads where shop_id = ${shopId}`);
-	// The per-month summaries hold the count of every series, kept current by triggers.
+	return heads;
+}
+
+/** Readings stored: the per-month summaries hold the count of every series, kept current by triggers. */
+export async function readingsStored(conn: Conn, shopId: string): Promise<number> {
 	const [stored] = await conn.execute<{ n: number }>(sql`select coalesce(sum(n), 0)::int as n from reading_summaries where shop_id = ${shopId}`);
-	// A valve position fails as received when any of its as-received readings is outside the
-	// limits in effect on the day it was measured.
-	const failing = await failingPositions(conn, shopId);
-	const due = await instrumentsDueWithin(conn, shopId, 30);
-	const comebacks = await conn.execute<OverviewFigures['latestComebacks'][number]>(sql`
+	return stored.n;
+}
+
+/** The latest comebacks: the new job, the original job, what failed (when recorded). */
+export async function latestComebacks(conn: Conn, shopId: string, limit = 5) {
+	const rows = await conn.execute<OverviewFigures['latestComebacks'][number]>(sql`
 		select h.id as "headId", h.serial, f.code as family, h.received_on::text as "receivedOn", h.comeback_of as "originalHeadId",
 			coalesce(c.what_failed, '') as reason
 		from heads h
 		join families f on f.shop_id = h.shop_id and f.id = h.family_id
 		left join comebacks c on c.shop_id = h.shop_id and c.head_id = h.id
 		where h.shop_id = ${shopId} and h.comeback_of is not null
-		order by h.received_on desc, h.serial limit 5`);
-	const imports = opts.withImports ? await listBatches(conn, shopId, { limit: 5 }) : null;
-	return {
-		headsReceivedThisMonth: heads.received,
-		headsReleasedThisMonth: heads.released,
-		headsInWork: heads.in_work,
-		readingsStored: stored.n,
-		failingAsReceived: failing.map((r) => {
-			const w = wilson(r.failing, r.positions);
-			return { ...r, share: w.rate, ci95: { low: w.low, high: w.high } };
-		}),
-		instrumentsDue: due.map((i) => ({ id: i.id, name: i.name, serial: i.serial, dueOn: i.dueOn, daysLeft: i.daysLeft })),
-		latestComebacks: [...comebacks],
-		latestImports: imports?.map((b) => ({ id: b.id, fileName: b.fileName, status: b.status, readings: b.readings, rejected: b.rejected, createdAt: new Date(b.createdAt).toISOString() })) ?? null
-	};
+		order by h.received_on desc, h.serial limit ${limit}`);
+	return [...rows];
 }
 
-type FailingRow = { side: 'intake' | 'exhaust'; positions: number; failing: number };
-
-/**
- * The last answer per shop, with a fingerprint of everything it depends on: the readings (their
- * per-month summaries change with every insert, update or delete: count, mean and M2) and the
- * limits. A fingerprint costs two small aggregates; the answer itself reads every as-received
- * reading of the shop. Kept at most 10 minutes whatever the fingerprint says.
- */
-const failingCache = new Map<string, { fingerprint: string; at: number; rows: FailingRow[] }>();
-const FAILING_TTL_MS = 10 * 60_000;
+export type FailingRow = { side: 'intake' | 'exhaust'; positions: number; failing: number };
 
 /** Valve positions with any as-received reading outside the limits of its day, per side. */
-export async function failingPositions(conn: Conn, shopId: string): Promise<FailingRow[]> {
+/** A fingerprint of everything failingPositions depends on: the readings (their per-month
+ * summaries change with every insert, update or delete: count, mean and M2) and the limits. Two
+ * small aggregates, where the answer itself reads every as-received reading of the shop. */
+export async function failingFingerprint(conn: Conn, shopId: string): Promise<string> {
 	const [fp] = await conn.execute<{ fingerprint: string }>(sql`
 		select concat_ws(':',
 			(select concat_ws(',', count(*), sum(n), sum(mean * n), sum(m2)) from reading_summaries where shop_id = ${shopId}),
 			(select concat_ws(',', count(*), sum(coalesce(min, 0)), sum(coalesce(max, 0)), max(effective_from)) from limits where shop_id = ${shopId})
 		) as fingerprint`);
-	const hit = failingCache.get(shopId);
-	if (hit && hit.fingerprint === fp.fingerprint && Date.now() - hit.at < FAILING_TTL_MS) return hit.rows;
+	return fp.fingerprint;
+}
+
+export async function failingPositions(conn: Conn, shopId: string): Promise<FailingRow[]> {
 	// Filtering on series_key lets this read the covering index alone (no table rows).
 	const rows = await conn.execute<FailingRow>(sql`
 		with lv as (
@@ -106,20 +92,6 @@ export async function failingPositions(conn: Conn, shopId: string): Promise<Fail
 		select case exhaust when 1 then 'exhaust' else 'intake' end as side, count(*)::int as positions,
 			count(*) filter (where out)::int as failing
 		from judged group by exhaust order by exhaust`);
-	const out = [...rows];
-	failingCache.set(shopId, { fingerprint: fp.fingerprint, at: Date.now(), rows: out });
-	return out;
+	return [...rows];
 }
 
-/**
- * Works out every shop's failing positions once, in the background, when the server starts, so
- * the first overview after a start does not wait for it. Errors are logged, never thrown.
- */
-export async function warmOverviews(db: Parameters<typeof withShop>[0]): Promise<void> {
-	try {
-		const shopIds = await withSystem(db, (tx) => tx.execute<{ id: string }>(sql`select id from shops`));
-		for (const { id } of shopIds) await withShop(db, id, (tx) => failingPositions(tx, id));
-	} catch (e) {
-		console.error('[overview] warming the figures failed', e);
-	}
-}

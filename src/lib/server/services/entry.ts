@@ -34,6 +34,7 @@ import { boreCells, cellReadings, deleteBore, deleteCellReadings, insertReading,
 import { familyById } from '../queries/families';
 import { lockHead, setHeadStatus } from '../queries/heads';
 import { instrumentById } from '../queries/instruments';
+import { DomainError } from '../errors';
 
 /** Vacuum hold is typed as a percentage, or as the held vacuum with the applied vacuum given once for the column. */
 export const VACUUM_UNITS = ['pct', 'kPa', 'inHg'] as const;
@@ -259,12 +260,13 @@ export async function saveEntries(tx: Tx, shopId: string, who: Who, headId: stri
 }
 
 /** Thrown inside the transaction to roll back everything written so far. */
-export class EntryRefused extends Error {
-	constructor(
-		message: string,
-		public errors: Record<string, string>
-	) {
-		super(message);
+export class EntryRefused extends DomainError {
+	constructor(message: string, errors: Record<string, string>) {
+		super(400, message, errors);
+		this.name = 'EntryRefused';
+	}
+	get errors() {
+		return this.fields;
 	}
 }
 

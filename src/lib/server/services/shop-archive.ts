@@ -8,6 +8,7 @@ import { PassThrough, type Readable } from 'node:stream';
 import type postgres from 'postgres';
 import yazl from 'yazl';
 import { csvLine } from '../csv';
+import { withShopSql } from '../db/scope';
 
 /** Tables with a shop_id that are left out, and why (the README lists them). */
 export const ARCHIVE_SKIPPED_TABLES: Record<string, string> = {
@@ -117,9 +118,10 @@ export function shopArchive(sql: postgres.Sql, shopId: string, onDone?: (entries
 	});
 	const mtime = new Date();
 
-	void sql
-		.begin('read only isolation level repeatable read', async (t) => {
-			await t`select set_config('lapmark.shop_id', ${shopId}, true)`;
+	void withShopSql(
+		sql,
+		shopId,
+		async (t) => {
 			const entries: ArchiveEntry[] = [];
 			for (const q of await archiveQueries(t)) {
 				const entry = new PassThrough();
@@ -142,8 +144,9 @@ export function shopArchive(sql: postgres.Sql, shopId: string, onDone?: (entries
 			// Hold the transaction (and its snapshot) until the last entry has been read.
 			if (!finished) await once(output, 'end', { signal: stop.signal });
 			return entries;
-		})
-		.then(
+		},
+		'read only isolation level repeatable read'
+	).then(
 			(entries) => onDone?.(entries as ArchiveEntry[]),
 			(e: unknown) => {
 				const err = e instanceof Error ? e : new Error(String(e));
