@@ -37,7 +37,7 @@ export const load: PageServerLoad = async (event) => {
 	const code = event.url.searchParams.get('error');
 	return {
 		// A fresh install (no shop at all) offers to create the first one.
-		firstShop: await noShopsYet(db),
+		firstShop: await noShopsYet(),
 		signupOpen: publicSignup,
 		redirectTo,
 		authError: code ? (AUTH_ERRORS[code] ?? 'Sign-in did not work. Try again.') : null,
