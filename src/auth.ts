@@ -10,8 +10,9 @@
 //   and mailed after the answer, only to an existing account (auth/mail-requests.ts);
 // - the adapter never creates an account (accounts come from an invitation or the shop sign-up,
 //   auth/accounts.ts);
-// - a password is checked once, by the sign-in page's action; `authorize` only accepts the
-//   person that action (or an accepted invitation) verified in this same request;
+// - a password is checked once, by `passwordOwner` (services/sign-in.ts) in the sign-in page's
+//   action; `authorize` checks nothing itself and only accepts the person that action (or an
+//   accepted invitation, a confirmed sign-up) verified in this same request;
 // - every URL Auth.js builds starts with ORIGIN (pinPublicOrigin).
 import { DrizzleAdapter } from '@auth/drizzle-adapter';
 import { SvelteKitAuth, type SvelteKitAuthConfig } from '@auth/sveltekit';
@@ -27,6 +28,7 @@ import { LINK_MINUTES, requestSignInLinkMail, startAuthMailWork } from '$lib/ser
 import { claimAttempt, noteAttempt } from '$lib/server/auth/rate-limit';
 import { SESSION_MAX_DAYS, endSession, startSession } from '$lib/server/auth/sessions';
 import { userExists } from '$lib/server/queries/sign-in';
+import type { VerifiedUser } from '$lib/server/services/sign-in';
 
 const origin = new URL(publicOrigin);
 
@@ -43,7 +45,7 @@ function pinPublicOrigin(headers: Headers) {
 }
 
 /** The people the sign-in page's action (or an invitation) verified, per request event. */
-const verified = new WeakMap<object, { id: string; email: string; name: string | null }>();
+const verified = new WeakMap<object, VerifiedUser>();
 
 const baseAdapter = DrizzleAdapter(db, {
 	usersTable: users,
@@ -151,11 +153,11 @@ function formEvent(event: RequestEvent, fields: Record<string, string>): Request
 }
 
 /**
- * Signs in a person whose password the caller has just checked (the sign-in page) or who has
- * just made an account (an invitation): sets the session cookie and redirects to `redirectTo`
+ * Signs in a person whose password the caller has just checked (the sign-in page, through
+ * passwordOwner; a confirmed sign-up) or who has just made an account (an invitation): sets the session cookie and redirects to `redirectTo`
  * (a same-origin path; Auth.js refuses others).
  */
-export async function signInVerified(event: RequestEvent, user: { id: string; email: string; name: string | null }, redirectTo: string): Promise<never> {
+export async function signInVerified(event: RequestEvent, user: VerifiedUser, redirectTo: string): Promise<never> {
 	const e = formEvent(event, { providerId: 'credentials', redirectTo });
 	verified.set(e, user);
 	await auth.signIn(e);

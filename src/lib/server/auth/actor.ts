@@ -24,6 +24,11 @@ export interface Actor {
 
 export const ACTIVE_SHOP_COOKIE = 'lapmark_shop';
 
+/** Makes `shopId` the shop the person works in from the next request on (for a year). */
+export function setActiveShop(event: RequestEvent, shopId: string): void {
+	event.cookies.set(ACTIVE_SHOP_COOKIE, shopId, { path: '/', httpOnly: true, sameSite: 'lax', secure: event.url.protocol === 'https:', maxAge: 365 * 24 * 3600 });
+}
+
 export type BearerResult = { actor: Actor } | { error: string } | null;
 
 /** Resolve `Authorization: Bearer lmk_…`. Null when no bearer header was sent. */

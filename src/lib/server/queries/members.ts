@@ -68,3 +68,14 @@ export async function invitationByHash(conn: Conn, tokenHash: string) {
 	const [row] = await conn.select().from(invitations).where(eq(invitations.tokenHash, tokenHash)).limit(1);
 	return row ?? null;
 }
+
+/** The addresses of the shop's own people (lower-cased): its members, its customers and the
+ * people it has invited and who have not answered yet. */
+export async function shopPeopleAddresses(conn: Conn, shopId: string): Promise<string[]> {
+	const rows = await conn.execute<{ address: string }>(sql`
+		select lower(u.email) as address from memberships m join "user" u on u.id = m.user_id where m.shop_id = ${shopId}
+		union select lower(customer_email) from heads where shop_id = ${shopId} and customer_email is not null
+		union select lower(email) from invitations
+			where shop_id = ${shopId} and accepted_at is null and revoked_at is null and expires_at > now()`);
+	return rows.map((r) => r.address);
+}

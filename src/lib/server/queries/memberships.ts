@@ -52,3 +52,12 @@ export async function liveToken(conn: Conn, tokenHash: string): Promise<LiveToke
 	const [row] = await conn.execute<LiveToken>(sql`select * from lapmark_token_actor(${tokenHash})`);
 	return row ?? null;
 }
+
+/** The shop's name, address on this site and units, as its settings page shows them. */
+export async function shopProfile(conn: Conn, shopId: string) {
+	const [shop] = await conn
+		.select({ name: shops.name, slug: shops.slug, lengthUnit: shops.lengthUnit, distanceUnit: shops.distanceUnit, currency: shops.currency, createdAt: shops.createdAt })
+		.from(shops)
+		.where(eq(shops.id, shopId));
+	return shop;
+}

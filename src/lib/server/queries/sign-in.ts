@@ -27,6 +27,16 @@ export async function settleAttempt(conn: Conn, attemptId: string): Promise<void
 	await conn.update(signInAttempts).set({ succeeded: 'yes' }).where(eq(signInAttempts.id, attemptId));
 }
 
+/** A person and their password hash, by address or by id (null when there is no such person). */
+export async function passwordHolder(conn: Conn, by: { email: string } | { userId: string }) {
+	const [row] = await conn
+		.select({ id: users.id, email: users.email, name: users.name, hash: users.passwordHash })
+		.from(users)
+		.where('email' in by ? eq(users.email, by.email) : eq(users.id, by.userId))
+		.limit(1);
+	return row ?? null;
+}
+
 export async function userExists(conn: Conn, email: string): Promise<boolean> {
 	const [row] = await conn.select({ id: users.id }).from(users).where(eq(users.email, email)).limit(1);
 	return Boolean(row);

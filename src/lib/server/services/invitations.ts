@@ -2,8 +2,8 @@
 // Runs under system scope (the person is not yet a member of the shop) and locks the
 // invitation row so a link cannot be used twice.
 import { eq, sql } from 'drizzle-orm';
-import type { Db } from '../db/client';
-import { withSystem } from '../db/scope';
+import { inSystem } from '../db';
+import type { Tx } from '../db/scope';
 import { invitations, memberships, shops, users } from '../db/schema';
 import { hashPassword } from '../auth/passwords';
 import { sha256Hex } from '../auth/tokens';
@@ -19,7 +19,7 @@ export const INVITATION_MESSAGES: Record<Exclude<InvitationState, 'ok'>, string>
 	revoked: 'This invitation was withdrawn by the shop owner.'
 };
 
-async function find(tx: Parameters<Parameters<Db['transaction']>[0]>[0], secret: string, lock: boolean) {
+async function find(tx: Tx, secret: string, lock: boolean) {
 	const rows = await tx.execute<{
 		id: string; shop_id: string; email: string; role: string; expires_at: Date; accepted_at: Date | null; revoked_at: Date | null; shop_name: string; expired: boolean;
 	}>(sql`
@@ -37,8 +37,8 @@ async function find(tx: Parameters<Parameters<Db['transaction']>[0]>[0], secret:
 	return { state: 'ok' as const, inv, userId: user?.id ?? null };
 }
 
-export async function inspectInvitation(db: Db, secret: string) {
-	return withSystem(db, async (tx) => {
+export async function inspectInvitation(secret: string) {
+	return inSystem(async (tx) => {
 		const r = await find(tx, secret, false);
 		if (r.state !== 'ok') return { state: r.state };
 		return { state: r.state, email: r.inv.email, role: r.inv.role, shopName: r.inv.shop_name, hasAccount: Boolean(r.userId) };
@@ -46,9 +46,9 @@ export async function inspectInvitation(db: Db, secret: string) {
 }
 
 /** Accept: creates the account when there is none (name and password required then). */
-export async function acceptInvitation(db: Db, secret: string, account: { name: string; password: string } | null) {
+export async function acceptInvitation(secret: string, account: { name: string; password: string } | null) {
 	const hash = account ? await hashPassword(account.password) : null;
-	return withSystem(db, async (tx) => {
+	return inSystem(async (tx) => {
 		const r = await find(tx, secret, true);
 		if (r.state !== 'ok') return { state: r.state };
 		let userId = r.userId;

@@ -1,15 +1,20 @@
 // "Forgot password": a single-use link by e-mail. The answer never says whether the address
 // has an account: the form only stores a request (auth/mail-requests.ts), and this work runs
 // afterwards. The link expires in an hour and works once; using it ends every session.
+//
+// Accounts, reset links and sessions are not shop-owned (no row-level security): the work runs
+// on the app's client without a shop or system scope.
 import { and, eq, gt, isNull, sql } from 'drizzle-orm';
+import { db } from '../db';
 import type { Db } from '../db/client';
-import type { Tx } from '../db/scope';
+import type { Conn, Tx } from '../db/scope';
 import { passwordResets, users } from '../db/schema';
-import { hashPassword, verifyPassword } from '../auth/passwords';
+import { hashPassword } from '../auth/passwords';
 import { endSessionsOf } from '../auth/sessions';
 import { newSecret, sha256Hex } from '../auth/tokens';
 import { queueMail } from '../mail/outbox';
 import { passwordResetMail } from '../mail/messages';
+import { passwordOwner } from './sign-in';
 
 /** In the caller's transaction: a reset link for `email`, queued in the outbox. Returns the
  * queued mail's id, or null when the address has no account. */
@@ -22,14 +27,14 @@ export async function queueReset(tx: Tx, email: string, origin: string): Promise
 }
 
 /** Returns the queued mail's id, or null when the address has no account. */
-export async function requestReset(db: Db, email: string, origin: string): Promise<string | null> {
-	return db.transaction((tx) => queueReset(tx, email, origin));
+export async function requestReset(conn: Db, email: string, origin: string): Promise<string | null> {
+	return conn.transaction((tx) => queueReset(tx, email, origin));
 }
 
 export type ResetState = 'ok' | 'invalid';
 
-export async function resetIsValid(db: Db, secret: string): Promise<boolean> {
-	const [row] = await db
+export async function resetIsValid(conn: Conn, secret: string): Promise<boolean> {
+	const [row] = await conn
 		.select({ id: passwordResets.id })
 		.from(passwordResets)
 		.where(and(eq(passwordResets.tokenHash, sha256Hex(secret)), isNull(passwordResets.usedAt), gt(passwordResets.expiresAt, sql`now()`)))
@@ -37,9 +42,14 @@ export async function resetIsValid(db: Db, secret: string): Promise<boolean> {
 	return Boolean(row);
 }
 
+/** For the reset page: does the link `secret` still work? */
+export function resetLinkWorks(secret: string): Promise<boolean> {
+	return resetIsValid(db, secret);
+}
+
 /** Sets the new password, uses up the link and ends every session of that person, atomically.
  * False when the link is not valid. */
-export async function completeReset(db: Db, secret: string, password: string): Promise<boolean> {
+export async function completeReset(secret: string, password: string): Promise<boolean> {
 	const hash = await hashPassword(password);
 	return db.transaction(async (tx) => {
 		const [row] = await tx
@@ -60,9 +70,8 @@ export type PasswordChange = { ok: true; ended: number } | { ok: false; field: '
  * A signed-in person changes their password: the current one must match. Every other session
  * of theirs ends in the same transaction; `keepSession` (the one making the change) stays.
  */
-export async function changePassword(db: Db, userId: string, current: string, next: string, keepSession: string | null): Promise<PasswordChange> {
-	const [user] = await db.select({ hash: users.passwordHash }).from(users).where(eq(users.id, userId)).limit(1);
-	if (!(await verifyPassword(current, user?.hash)) || !user?.hash) {
+export async function changePassword(userId: string, current: string, next: string, keepSession: string | null): Promise<PasswordChange> {
+	if (!(await passwordOwner({ userId }, current))) {
 		return { ok: false, field: 'current', message: 'That is not your current password.' };
 	}
 	const hash = await hashPassword(next);

@@ -8,6 +8,7 @@ import { PassThrough, type Readable } from 'node:stream';
 import type postgres from 'postgres';
 import yazl from 'yazl';
 import { csvLine } from '../csv';
+import { sql as appSql } from '../db';
 import { withShopSql } from '../db/scope';
 
 /** Tables with a shop_id that are left out, and why (the README lists them). */
@@ -155,4 +156,12 @@ export function shopArchive(sql: postgres.Sql, shopId: string, onDone?: (entries
 			}
 		);
 	return output;
+}
+
+/** The shop's archive on the app's database, for the download: a failure that cuts it short is
+ * logged (the client sees a broken zip). */
+export function archiveDownload(shopId: string): Readable {
+	return shopArchive(appSql, shopId, (result) => {
+		if (result instanceof Error) console.error(`[archive] shop ${shopId}: ${result.message}`);
+	});
 }

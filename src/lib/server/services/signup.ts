@@ -3,12 +3,13 @@
 // owner's membership, in one transaction. An address that already has an account gets a note
 // instead, and the form's answer is the same, so the form does not tell who has an account.
 import { and, eq, isNull, sql } from 'drizzle-orm';
-import type { Db } from '../db/client';
-import { withSystem } from '../db/scope';
+import { inSystem } from '../db';
+import type { Tx } from '../db/scope';
 import { shopSignups } from '../db/schema';
+import { publicOrigin } from '../env';
 import { hashPassword, verifyPassword } from '../auth/passwords';
 import { newSecret, sha256Hex } from '../auth/tokens';
-import { queueMail } from '../mail/outbox';
+import { deliverQueued, queueMail } from '../mail';
 import { signupConfirmMail, signupExistingMail } from '../mail/shop-messages';
 import type { SignupInput } from '../../schemas/shop';
 import { createShopWithOwner, createUser, userIdByEmail } from './accounts';
@@ -16,12 +17,19 @@ import { createShopWithOwner, createUser, userIdByEmail } from './accounts';
 /** How long a sign-up link works. */
 export const SIGNUP_LINK_HOURS = 24;
 
+/** Queues the confirmation (or, for a known address, the note) and sends it after the commit,
+ * without waiting: a send that fails is retried from the outbox. */
+export async function requestSignup(input: SignupInput): Promise<void> {
+	const mailId = await queueSignupMail(input, publicOrigin);
+	void deliverQueued([mailId]).catch((e) => console.error('[signup] mail not sent yet', e));
+}
+
 /** Queues the confirmation (or, for a known address, the note); returns the mail's id. */
-export async function requestSignup(db: Db, input: SignupInput, origin: string): Promise<string> {
+async function queueSignupMail(input: SignupInput, origin: string): Promise<string> {
 	// Hashed whether or not the address is known, so both answers take as long.
 	const passwordHash = await hashPassword(input.password);
 	const base = origin.replace(/\/+$/, '');
-	return withSystem(db, async (tx) => {
+	return inSystem(async (tx) => {
 		// Sign-ups never confirmed are of no use a week after their link expired.
 		await tx.delete(shopSignups).where(and(isNull(shopSignups.confirmedAt), sql`${shopSignups.expiresAt} < now() - interval '7 days'`));
 		if (await userIdByEmail(tx, input.email)) {
@@ -54,7 +62,7 @@ export const SIGNUP_MESSAGES: Record<Exclude<SignupState, 'ok'>, string> = {
 
 type Found = { state: Exclude<SignupState, 'ok'> } | { state: 'ok'; row: typeof shopSignups.$inferSelect };
 
-async function find(tx: Parameters<Parameters<Db['transaction']>[0]>[0], secret: string, lock: boolean): Promise<Found> {
+async function find(tx: Tx, secret: string, lock: boolean): Promise<Found> {
 	const q = tx
 		.select()
 		.from(shopSignups)
@@ -68,8 +76,8 @@ async function find(tx: Parameters<Parameters<Db['transaction']>[0]>[0], secret:
 	return { state: 'ok', row };
 }
 
-export async function inspectSignup(db: Db, secret: string) {
-	return withSystem(db, async (tx) => {
+export async function inspectSignup(secret: string) {
+	return inSystem(async (tx) => {
 		const r = await find(tx, secret, false);
 		if (r.state !== 'ok') return { state: r.state };
 		return { state: r.state, email: r.row.email, ownerName: r.row.ownerName, shopName: r.row.shopName };
@@ -81,8 +89,8 @@ export async function inspectSignup(db: Db, secret: string) {
  * say a forwarded mail, does not sign anybody in). Creates the user, the shop and the owner's
  * membership and uses up the link, atomically.
  */
-export async function confirmSignup(db: Db, secret: string, password: string) {
-	return withSystem(db, async (tx) => {
+export async function confirmSignup(secret: string, password: string) {
+	return inSystem(async (tx) => {
 		const r = await find(tx, secret, true);
 		if (r.state !== 'ok') return { state: r.state } as const;
 		if (!(await verifyPassword(password, r.row.passwordHash))) return { state: 'wrong_password', email: r.row.email } as const;
@@ -104,7 +112,7 @@ export async function confirmSignup(db: Db, secret: string, password: string) {
 }
 
 /** Is there no shop at all yet (a fresh install)? */
-export async function noShopsYet(db: Db): Promise<boolean> {
-	const rows = await withSystem(db, (tx) => tx.execute(sql`select 1 from shops limit 1`));
+export async function noShopsYet(): Promise<boolean> {
+	const rows = await inSystem((tx) => tx.execute(sql`select 1 from shops limit 1`));
 	return rows.length === 0;
 }

@@ -1,6 +1,6 @@
 import { error, redirect } from '@sveltejs/kit';
 import { safeRedirect } from '$lib/schemas/auth';
-import { ACTIVE_SHOP_COOKIE } from '$lib/server/auth/actor';
+import { setActiveShop } from '$lib/server/auth/actor';
 import { requireUser } from '$lib/server/auth/guards';
 import type { Actions, PageServerLoad } from './$types';
 
@@ -13,13 +13,7 @@ export const actions: Actions = {
 		const shopId = String(form.get('shopId') ?? '');
 		// Only a shop the user belongs to; anything else looks like a shop that does not exist.
 		if (!actor.memberships.some((m) => m.shopId === shopId)) error(404, 'No such shop.');
-		event.cookies.set(ACTIVE_SHOP_COOKIE, shopId, {
-			path: '/',
-			httpOnly: true,
-			sameSite: 'lax',
-			secure: event.url.protocol === 'https:',
-			maxAge: 365 * 24 * 3600
-		});
+		setActiveShop(event, shopId);
 		redirect(303, safeRedirect(form.get('redirectTo')));
 	}
 };

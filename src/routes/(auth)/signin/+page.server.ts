@@ -1,12 +1,9 @@
 import { error, fail, redirect } from '@sveltejs/kit';
 import { requestSignInLink, signInVerified } from '../../../auth';
 import { fieldErrors, linkSignIn, passwordSignIn, safeRedirect } from '$lib/schemas/auth';
-import { verifyPassword } from '$lib/server/auth/passwords';
-import { claimAttempt, settleAttempt, signInBlocked } from '$lib/server/auth/rate-limit';
-import { db } from '$lib/server/db';
-import { users } from '$lib/server/db/schema';
-import { eq } from 'drizzle-orm';
+import { signInBlocked } from '$lib/server/auth/rate-limit';
 import { publicSignup } from '$lib/server/env';
+import { signInWithPassword } from '$lib/server/services/sign-in';
 import { noShopsYet } from '$lib/server/services/signup';
 import { sitePath } from '$lib/schemas/text';
 import type { Actions, PageServerLoad } from './$types';
@@ -37,7 +34,7 @@ export const load: PageServerLoad = async (event) => {
 	const code = event.url.searchParams.get('error');
 	return {
 		// A fresh install (no shop at all) offers to create the first one.
-		firstShop: await noShopsYet(db),
+		firstShop: await noShopsYet(),
 		signupOpen: publicSignup,
 		redirectTo,
 		authError: code ? (AUTH_ERRORS[code] ?? 'Sign-in did not work. Try again.') : null,
@@ -56,16 +53,12 @@ export const actions: Actions = {
 		const parsed = passwordSignIn.safeParse({ email: form.get('email'), password: form.get('password') });
 		if (!parsed.success) return fail(400, { mode: 'password', email: typedEmail, errors: fieldErrors(parsed.error) });
 		const { email, password } = parsed.data;
-		// Checked and counted in one step before the password is, so parallel guesses cannot
-		// slip past the limit (auth/rate-limit.ts).
-		const claim = await claimAttempt(email, event.getClientAddress());
-		if (claim.blocked !== null) return fail(429, { mode: 'password', email, errors: { form: claim.blocked } });
-		// The one lookup and the one hash check of a password sign-in.
-		const [user] = await db.select({ id: users.id, email: users.email, name: users.name, hash: users.passwordHash }).from(users).where(eq(users.email, email)).limit(1);
-		const ok = (await verifyPassword(password, user?.hash)) && Boolean(user);
-		await settleAttempt(claim.attemptId, ok);
-		if (!ok || !user) return fail(400, { mode: 'password', email, errors: { form: AUTH_ERRORS.CredentialsSignin } });
-		await signInVerified(event, { id: user.id, email: user.email, name: user.name }, safeRedirect(form.get('redirectTo')));
+		// Counted against the limit, then the one lookup and the one hash check of a password
+		// sign-in (services/sign-in.ts); Auth.js signs in the person it returned, unchecked.
+		const attempt = await signInWithPassword(email, password, event.getClientAddress());
+		if (attempt.state === 'blocked') return fail(429, { mode: 'password', email, errors: { form: attempt.message } });
+		if (attempt.state === 'wrong') return fail(400, { mode: 'password', email, errors: { form: AUTH_ERRORS.CredentialsSignin } });
+		await signInVerified(event, attempt.user, safeRedirect(form.get('redirectTo')));
 	},
 	link: async (event) => {
 		const form = await event.request.formData();

@@ -2,9 +2,7 @@ import { fail } from '@sveltejs/kit';
 import { fieldErrors } from '$lib/schemas/auth';
 import { signupSchema } from '$lib/schemas/shop';
 import { claimAttempt } from '$lib/server/auth/rate-limit';
-import { db } from '$lib/server/db';
-import { publicOrigin, publicSignup } from '$lib/server/env';
-import { deliverQueued } from '$lib/server/mail';
+import { publicSignup } from '$lib/server/env';
 import { SIGNUP_LINK_HOURS, noShopsYet, requestSignup } from '$lib/server/services/signup';
 import type { Actions, PageServerLoad } from './$types';
 
@@ -13,7 +11,7 @@ const CLOSED = 'Public sign-up is turned off on this server. Ask the person who 
 export const load: PageServerLoad = async () => ({
 	open: publicSignup,
 	closedMessage: CLOSED,
-	firstShop: publicSignup ? await noShopsYet(db) : false,
+	firstShop: publicSignup ? await noShopsYet() : false,
 	linkHours: SIGNUP_LINK_HOURS
 });
 
@@ -34,9 +32,8 @@ export const actions: Actions = {
 		// requests cannot all slip under it) and the form cannot be used to flood a mailbox.
 		const claim = await claimAttempt(input.email, client);
 		if (claim.blocked) return fail(429, { errors: { form: claim.blocked } as Record<string, string>, values });
-		const mailId = await requestSignup(db, input, publicOrigin);
-		// Sent after answering; a send that fails is retried from the outbox.
-		void deliverQueued([mailId]).catch((e) => console.error('[signup] mail not sent yet', e));
+		// Mailed after answering; a send that fails is retried from the outbox.
+		await requestSignup(input);
 		return { sent: true, email: input.email };
 	}
 };

@@ -3,7 +3,6 @@ import { z } from 'zod';
 import { fieldErrors, newPasswordSchema } from '$lib/schemas/auth';
 import { requireUser } from '$lib/server/auth/guards';
 import { claimAttempt, settleAttempt } from '$lib/server/auth/rate-limit';
-import { db } from '$lib/server/db';
 import { changePassword } from '$lib/server/services/password-reset';
 import type { Actions, PageServerLoad } from './$types';
 
@@ -28,7 +27,7 @@ export const actions: Actions = {
 		// Guesses at the current password count like sign-in attempts.
 		const claim = await claimAttempt(actor.email, event.getClientAddress());
 		if (claim.blocked !== null) return fail(429, { errors: { form: claim.blocked } });
-		const result = await changePassword(db, actor.userId, parsed.data.current, parsed.data.password, actor.sessionId);
+		const result = await changePassword(actor.userId, parsed.data.current, parsed.data.password, actor.sessionId);
 		await settleAttempt(claim.attemptId, result.ok);
 		if (!result.ok) return fail(400, { errors: { [result.field]: result.message } });
 		return {

@@ -2,8 +2,7 @@ import { fail, redirect } from '@sveltejs/kit';
 import { z } from 'zod';
 import { signInVerified } from '../../../../auth';
 import { fieldErrors, newPasswordSchema } from '$lib/schemas/auth';
-import { ACTIVE_SHOP_COOKIE } from '$lib/server/auth/actor';
-import { db } from '$lib/server/db';
+import { setActiveShop } from '$lib/server/auth/actor';
 import { INVITATION_MESSAGES, acceptInvitation, inspectInvitation } from '$lib/server/services/invitations';
 import type { Actions, PageServerLoad } from './$types';
 
@@ -13,7 +12,7 @@ const accountSchema = z.object({
 });
 
 export const load: PageServerLoad = async ({ params }) => {
-	const inv = await inspectInvitation(db, params.token);
+	const inv = await inspectInvitation(params.token);
 	if (inv.state !== 'ok') return { invitation: null, problem: INVITATION_MESSAGES[inv.state] };
 	return { invitation: inv, problem: null };
 };
@@ -21,7 +20,7 @@ export const load: PageServerLoad = async ({ params }) => {
 export const actions: Actions = {
 	accept: async (event) => {
 		const form = await event.request.clone().formData();
-		const inv = await inspectInvitation(db, event.params.token);
+		const inv = await inspectInvitation(event.params.token);
 		if (inv.state !== 'ok') return fail(410, { errors: { form: INVITATION_MESSAGES[inv.state] } });
 		let account: z.infer<typeof accountSchema> | null = null;
 		if (!inv.hasAccount) {
@@ -29,11 +28,11 @@ export const actions: Actions = {
 			if (!parsed.success) return fail(400, { name: String(form.get('name') ?? '').slice(0, 120), errors: fieldErrors(parsed.error) });
 			account = parsed.data;
 		}
-		const result = await acceptInvitation(db, event.params.token, account);
+		const result = await acceptInvitation(event.params.token, account);
 		if (result.state !== 'ok') {
 			return fail(410, { errors: { form: result.state === 'needs_account' ? 'Choose a name and password.' : INVITATION_MESSAGES[result.state] } });
 		}
-		event.cookies.set(ACTIVE_SHOP_COOKIE, result.shopId, { path: '/', httpOnly: true, sameSite: 'lax', secure: event.url.protocol === 'https:', maxAge: 365 * 24 * 3600 });
+		setActiveShop(event, result.shopId);
 		if (!account) redirect(303, `/signin?joined=1&redirectTo=%2F`);
 		// A new account, just made with the password chosen on this form: signed in at once.
 		await signInVerified(event, { id: result.userId, email: result.email, name: account.name }, '/');

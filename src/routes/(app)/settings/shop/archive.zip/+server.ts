@@ -1,7 +1,6 @@
 import { Readable } from 'node:stream';
 import { requireRole } from '$lib/server/auth/guards';
-import { sql } from '$lib/server/db';
-import { shopArchive } from '$lib/server/services/shop-archive';
+import { archiveDownload } from '$lib/server/services/shop-archive';
 import type { RequestHandler } from './$types';
 
 /** The whole shop as a zip of CSV files, streamed (owner only). */
@@ -9,10 +8,7 @@ export const GET: RequestHandler = async (event) => {
 	const actor = requireRole(event, 'owner');
 	const day = new Date().toISOString().slice(0, 10);
 	const slug = actor.memberships.find((m) => m.shopId === actor.shopId)?.shopSlug ?? 'shop';
-	const archive = shopArchive(sql, actor.shopId, (result) => {
-		if (result instanceof Error) console.error(`[archive] shop ${actor.shopId}: ${result.message}`);
-	});
-	return new Response(Readable.toWeb(archive) as ReadableStream<Uint8Array>, {
+	return new Response(Readable.toWeb(archiveDownload(actor.shopId)) as ReadableStream<Uint8Array>, {
 		headers: {
 			'content-type': 'application/zip',
 			'content-disposition': `attachment; filename="lapmark-${slug}-${day}.zip"`,
