@@ -6,7 +6,6 @@
 // on the app's client without a shop or system scope.
 import { and, eq, gt, isNull, sql } from 'drizzle-orm';
 import { db } from '../db';
-import type { Db } from '../db/client';
 import type { Conn, Tx } from '../db/scope';
 import { passwordResets, users } from '../db/schema';
 import { hashPassword } from '../auth/passwords';
@@ -24,11 +23,6 @@ export async function queueReset(tx: Tx, email: string, origin: string): Promise
 	const secret = newSecret();
 	await tx.insert(passwordResets).values({ userId: user.id, tokenHash: sha256Hex(secret), expiresAt: sql`now() + interval '1 hour'` });
 	return queueMail(tx, { to: email, ...passwordResetMail(`${origin}/signin/reset/${secret}`) });
-}
-
-/** Returns the queued mail's id, or null when the address has no account. */
-export async function requestReset(conn: Db, email: string, origin: string): Promise<string | null> {
-	return conn.transaction((tx) => queueReset(tx, email, origin));
 }
 
 export type ResetState = 'ok' | 'invalid';
