@@ -148,10 +148,11 @@ export async function headById(conn: Conn, shopId: string, id: string) {
 	return row ?? null;
 }
 
-/** The head row, locked until the transaction ends: entries, decisions and release of one head
- * happen one after the other. */
-export async function lockHead(conn: Conn, shopId: string, id: string) {
-	const [row] = await conn.select().from(heads).where(and(eq(heads.shopId, shopId), eq(heads.id, id))).for('update').limit(1);
+/** The head row alone. With `lock`, locked until the transaction ends: entries, decisions and
+ * release of one head happen one after the other. */
+export async function headRow(conn: Conn, shopId: string, id: string, opts: { lock?: boolean } = {}) {
+	const q = conn.select().from(heads).where(and(eq(heads.shopId, shopId), eq(heads.id, id))).limit(1).$dynamic();
+	const [row] = await (opts.lock ? q.for('update') : q);
 	return row ?? null;
 }
 
@@ -249,11 +250,6 @@ export async function comebackDetail(conn: Conn, shopId: string, headId: string)
 		.from(comebacks)
 		.where(and(eq(comebacks.shopId, shopId), eq(comebacks.headId, headId)))
 		.limit(1);
-	return row ?? null;
-}
-
-export async function headSerial(conn: Conn, shopId: string, id: string) {
-	const [row] = await conn.select({ serial: heads.serial, releasedOn: heads.releasedOn }).from(heads).where(and(eq(heads.shopId, shopId), eq(heads.id, id))).limit(1);
 	return row ?? null;
 }
 

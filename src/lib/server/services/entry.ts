@@ -27,12 +27,13 @@ import {
 	type EntryField,
 	type Position
 } from '$lib/inspection';
+import { inShop } from '../db';
 import type { Tx } from '../db/scope';
 import type { HeadStatus } from '../db/schema';
 import { audit, type AuditWho } from '../queries/audit';
 import { boreCells, cellReadings, deleteBore, deleteCellReadings, insertReading, updateReading, upsertBore } from '../queries/entry';
 import { familyById } from '../queries/families';
-import { lockHead, setHeadStatus } from '../queries/heads';
+import { headRow, setHeadStatus } from '../queries/heads';
 import { instrumentById } from '../queries/instruments';
 import { DomainError } from '../errors';
 
@@ -76,7 +77,7 @@ interface Planned {
 }
 
 export async function saveEntries(tx: Tx, shopId: string, who: Who, headId: string, stage: Stage, input: EntryInput): Promise<EntryResult> {
-	const head = await lockHead(tx, shopId, headId);
+	const head = await headRow(tx, shopId, headId, { lock: true });
 	if (!head) return { ok: false, code: 404, message: 'No such head in this shop.', errors: {} };
 	if (head.status === 'released') {
 		return { ok: false, code: 409, message: `Head ${head.serial} was released on ${head.releasedOn}; its readings are closed. Record a comeback to measure it again.`, errors: {} };
@@ -257,6 +258,14 @@ export async function saveEntries(tx: Tx, shopId: string, who: Who, headId: stri
 		status = next;
 	}
 	return { ok: true, changed, status };
+}
+
+/** What the grid's save action calls: saveEntries in the shop's scope. A refusal is thrown as a
+ * DomainError (EntryRefused when a value was wrong: nothing of the save is written). */
+export async function saveGridEntries(shopId: string, who: Who, headId: string, stage: Stage, input: EntryInput) {
+	const r = await inShop(shopId, (tx) => saveEntries(tx, shopId, who, headId, stage, input));
+	if (!r.ok) throw new DomainError(r.code, r.message, r.errors);
+	return r;
 }
 
 /** Thrown inside the transaction to roll back everything written so far. */

@@ -23,10 +23,12 @@ import {
 	type Position,
 	type SealPassMarks
 } from '$lib/inspection';
+import { inShop } from '../db';
 import type { Conn } from '../db/scope';
+import { notFound } from '../errors';
 import { boreReadingsOf, currentReadings, decisionsOf, fleetStats, type DecisionRow } from '../queries/entry';
 import { limitVersions } from '../queries/families';
-import { comebackDetail, comebacksOfHead, headById, headSerial, leakageOf, shopSettings } from '../queries/heads';
+import { comebackDetail, comebacksOfHead, headById, headRow, leakageOf, shopSettings } from '../queries/heads';
 import { gaugesOf } from '../queries/instruments';
 import { suggestDecision, type Bounds, type Suggestion } from './decisions';
 
@@ -72,6 +74,18 @@ export function today(): string {
 	return new Date().toISOString().slice(0, 10);
 }
 
+/** The judged view of one head of the shop, for the pages; a 404 refusal when there is none. */
+export function headView(shopId: string, headId: string, opts: { fleet?: Stage } = {}): Promise<HeadView> {
+	return inShop(shopId, (tx) => viewOrRefuse(tx, shopId, headId, opts));
+}
+
+/** loadHeadView inside the caller's transaction, refused (404) when the head is not there. */
+export async function viewOrRefuse(conn: Conn, shopId: string, headId: string, opts: { fleet?: Stage } = {}): Promise<HeadView> {
+	const view = await loadHeadView(conn, shopId, headId, opts);
+	if (!view) throw notFound('No such head in this shop.');
+	return view;
+}
+
 /** Null when the head is not this shop's (row-level security hides it, or it does not exist). */
 /** `fleet`: also compare every value with the family's fleet at that stage (two percentile passes). */
 export async function loadHeadView(conn: Conn, shopId: string, headId: string, opts: { fleet?: Stage } = {}) {
@@ -89,7 +103,7 @@ export async function loadHeadView(conn: Conn, shopId: string, headId: string, o
 		comebacksOfHead(conn, shopId, headId),
 		head.comebackOf ? comebackDetail(conn, shopId, headId) : Promise.resolve(null)
 	]);
-	const original = head.comebackOf ? await headSerial(conn, shopId, head.comebackOf) : null;
+	const original = head.comebackOf ? await headRow(conn, shopId, head.comebackOf) : null;
 	const marks: SealPassMarks = {
 		vacuumHoldPassPct: settings.vacuumHoldPassPct ?? DEFAULT_SEAL_MARKS.vacuumHoldPassPct,
 		fluidHoldPassSeconds: settings.fluidHoldPassSeconds ?? DEFAULT_SEAL_MARKS.fluidHoldPassSeconds

@@ -1,17 +1,33 @@
-// The head's way through the shop: intake, decisions, release and comebacks. Each function runs
-// inside the caller's withShop transaction, checks everything before it writes, and audits what
-// it changed in the same transaction.
+// The head's way through the shop: intake, decisions, release and comebacks. Each tx-taking
+// function runs inside the caller's transaction, checks everything before it writes, and audits
+// what it changed in the same transaction. The functions at the end are what the pages call: each
+// opens the shop's scope and turns a refusal into a DomainError.
 import { distanceToKm, leakagePercent, pressureToKpa, type PressureUnit } from '$lib/measurements';
 import { hasPosition, parsePosKey, posKey, posLabel, type Position } from '$lib/inspection';
+import { inShop } from '../db';
 import type { Tx } from '../db/scope';
 import type { DecisionKind, LeakPath } from '../db/schema';
+import { conflict, DomainError } from '../errors';
 import { audit } from '../queries/audit';
 import { upsertDecision } from '../queries/entry';
-import { familyById } from '../queries/families';
-import { insertComeback, insertHead, insertLeakage, lockHead, markReleased, nextComebackSerial, serialTaken, setHeadStatus } from '../queries/heads';
+import { familyById, listFamilies } from '../queries/families';
+import {
+	customerEmails,
+	customersOf,
+	headRow,
+	insertComeback,
+	insertHead,
+	insertLeakage,
+	listHeads,
+	markReleased,
+	nextComebackSerial,
+	serialTaken,
+	setHeadStatus,
+	type HeadFilter
+} from '../queries/heads';
 import { seatCutWarning } from './decisions';
 import type { Who } from './entry';
-import { loadHeadView, releaseBlockers, today, type ReleaseBlocker } from './head-view';
+import { loadHeadView, releaseBlockers, today, viewOrRefuse, type ReleaseBlocker } from './head-view';
 
 export type Refusal = { ok: false; code: 400 | 404 | 409; message: string; errors: Record<string, string> };
 const refuse = (code: Refusal['code'], message: string, errors: Record<string, string> = {}): Refusal => ({ ok: false, code, message, errors });
@@ -115,7 +131,7 @@ export async function intakeHead(tx: Tx, shopId: string, who: Who, d: IntakeData
 // Decisions
 
 export async function recordDecision(tx: Tx, shopId: string, who: Who, headId: string, d: { pos: string; kind: DecisionKind; note: string; acknowledge: boolean }) {
-	const head = await lockHead(tx, shopId, headId);
+	const head = await headRow(tx, shopId, headId, { lock: true });
 	if (!head) return refuse(404, 'No such head in this shop.');
 	if (head.status === 'released') return refuse(409, `Head ${head.serial} was released; its decisions are closed.`);
 	const view = await loadHeadView(tx, shopId, headId);
@@ -150,7 +166,7 @@ export async function recordDecision(tx: Tx, shopId: string, who: Who, headId: s
 // Release
 
 export async function releaseHead(tx: Tx, shopId: string, who: Who, headId: string, r: { override: boolean; reason: string; isOwner: boolean }) {
-	const head = await lockHead(tx, shopId, headId);
+	const head = await headRow(tx, shopId, headId, { lock: true });
 	if (!head) return refuse(404, 'No such head in this shop.');
 	if (head.status === 'released') return refuse(409, `Head ${head.serial} was already released on ${head.releasedOn}.`);
 	const view = await loadHeadView(tx, shopId, headId);
@@ -189,7 +205,7 @@ export async function recordComeback(
 	originalId: string,
 	d: { returnedOn: string; usageUnit: 'km' | 'mi' | 'h'; usage: number | null; whatFailed: string; positions: string[] }
 ) {
-	const original = await lockHead(tx, shopId, originalId);
+	const original = await headRow(tx, shopId, originalId, { lock: true });
 	if (!original) return refuse(404, 'No such head in this shop.');
 	if (original.status !== 'released' || !original.releasedOn) return refuse(409, `Head ${original.serial} has not been released yet; a comeback is recorded against a released head.`);
 	const family = await familyById(tx, shopId, original.familyId);
@@ -230,4 +246,84 @@ export async function recordComeback(
 		after: { original: original.serial, comeback: serial, returnedOn: d.returnedOn, mileageKm, whatFailed: d.whatFailed, positions: positions.map((p) => posLabel(p, family)) }
 	});
 	return { ok: true as const, head };
+}
+
+// ---------------------------------------------------------------------------------------------
+// What the pages call
+
+/** A refusal of the functions above as the one error type (its extra fields as details). */
+export function unlessRefused<R extends { ok: boolean }>(r: R): Exclude<R, { ok: false }> {
+	if (r.ok) return r as Exclude<R, { ok: false }>;
+	const { ok: _ok, code, message, errors, ...details } = r as unknown as Refusal & Record<string, unknown>;
+	throw new DomainError(code, message, errors, details);
+}
+
+/** One page of the head list (sorted, filtered and paged in SQL) and the families to filter by. */
+export function headsPage(shopId: string, filter: Omit<HeadFilter, 'pageSize'>, pageSize: number) {
+	return inShop(shopId, async (tx) => {
+		const { rows, total } = await listHeads(tx, shopId, { ...filter, pageSize });
+		const families = await listFamilies(tx, shopId);
+		return { rows, total, families: families.map((f) => ({ id: f.id, code: f.code })) };
+	});
+}
+
+/** What the intake form offers: the families, the customers known and their latest e-mail. */
+export function intakeChoices(shopId: string) {
+	return inShop(shopId, async (tx) => ({
+		families: (await listFamilies(tx, shopId)).map((f) => ({ id: f.id, code: f.code, description: f.description, cylinders: f.cylinders })),
+		customers: await customersOf(tx, shopId),
+		emails: await customerEmails(tx, shopId)
+	}));
+}
+
+function violates(e: unknown, constraint: string): boolean {
+	const cause = ((e as { cause?: unknown })?.cause ?? e) as { code?: string; constraint_name?: string };
+	return cause?.code === '23505' && cause.constraint_name === constraint;
+}
+
+/** Takes a head in; the new head row. */
+export async function takeInHead(shopId: string, who: Who, d: IntakeData) {
+	try {
+		return unlessRefused(await inShop(shopId, (tx) => intakeHead(tx, shopId, who, d))).head;
+	} catch (e) {
+		// Two people taking in the same serial at the same moment: the second is told so.
+		if (violates(e, 'heads_shop_serial_key')) throw conflict('The head was not saved.', { serial: `Head ${d.serial} was just taken in by someone else.` });
+		throw e;
+	}
+}
+
+/** Records one position's decision; whether anything changed. A seat cut over a bad guide is
+ * refused (409) until acknowledged, with the warning in the details. */
+export async function decide(shopId: string, who: Who, headId: string, d: Parameters<typeof recordDecision>[4]) {
+	return unlessRefused(await inShop(shopId, (tx) => recordDecision(tx, shopId, who, headId, d))).changed;
+}
+
+/**
+ * Confirms the suggested decision of every position that has one and no decision yet. A refusal
+ * stops the loop and is returned, not thrown: the decisions recorded before it stay.
+ */
+export function acceptSuggestions(shopId: string, who: Who, headId: string) {
+	return inShop(shopId, async (tx) => {
+		const view = await viewOrRefuse(tx, shopId, headId);
+		let n = 0;
+		for (const p of view.positions) {
+			const key = posKey(p);
+			const s = view.suggestions.get(key);
+			if (view.decisions.has(key) || !s?.kind) continue;
+			const r = await recordDecision(tx, shopId, who, headId, { pos: key, kind: s.kind, note: '', acknowledge: false });
+			if (!r.ok) return { ok: false as const, code: r.code, pos: key, message: `${posLabel(p, view.family)}: ${r.message}` };
+			n++;
+		}
+		return { ok: true as const, accepted: n };
+	});
+}
+
+/** Releases a head (over failing checks only for an owner, with a reason). */
+export async function release(shopId: string, who: Who, headId: string, r: Parameters<typeof releaseHead>[4]) {
+	return unlessRefused(await inShop(shopId, (tx) => releaseHead(tx, shopId, who, headId, r)));
+}
+
+/** Records a comeback of a released head; the new comeback job. */
+export async function registerComeback(shopId: string, who: Who, originalId: string, d: Parameters<typeof recordComeback>[4]) {
+	return unlessRefused(await inShop(shopId, (tx) => recordComeback(tx, shopId, who, originalId, d))).head;
 }

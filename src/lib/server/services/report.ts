@@ -5,8 +5,13 @@ import { CAUTIONS } from '$lib/cautions';
 import { MEASUREMENT_INFO, UNIT_LABEL, type Measurement } from '$lib/measurements';
 import { posLabel, SEAL_TESTS, STAGE_LABEL } from '$lib/inspection';
 import { LEAK_PATH_LABEL, STATUS_LABEL } from '$lib/schemas/heads';
+import { inShop } from '../db';
+import { invalid } from '../errors';
+import { deliverQueued, queueMail } from '../mail';
+import { audit } from '../queries/audit';
 import { DECISION_LABEL } from './decisions';
-import { releaseBlockers, type HeadView } from './head-view';
+import type { Who } from './entry';
+import { releaseBlockers, viewOrRefuse, type HeadView } from './head-view';
 
 /** The measurements the report compares, in order; the bore as its largest reading. */
 export const REPORT_MEASUREMENTS: Measurement[] = [
@@ -172,4 +177,27 @@ export function reportMail(r: HeadReport) {
 		`<p>— Lapmark</p>`
 	].join('\n');
 	return { subject: `Head report ${r.serial} from ${r.shopName}`, kind: 'head_report', text: lines.join('\n'), html };
+}
+
+/** The printable report of one head of the shop (404 when there is none). */
+export function headReport(shopId: string, shopName: string, headId: string): Promise<HeadReport> {
+	return inShop(shopId, async (tx) => buildReport(await viewOrRefuse(tx, shopId, headId), shopName));
+}
+
+/**
+ * Mails the report to the customer's address on record: queued and audited in one transaction,
+ * sent after it commits (a failed send stays queued and is retried). 400 when the head has no
+ * customer e-mail address.
+ */
+export async function emailHeadReport(shopId: string, shopName: string, who: Who, headId: string) {
+	const { to, mailId } = await inShop(shopId, async (tx) => {
+		const view = await viewOrRefuse(tx, shopId, headId);
+		const to = view.head.customerEmail;
+		if (!to) throw invalid('This head has no customer e-mail address on record.');
+		const mail = reportMail(buildReport(view, shopName));
+		const mailId = await queueMail(tx, { ...mail, to, shopId });
+		await audit(tx, shopId, who, { entity: 'head_report', entityId: headId, action: 'create', after: { head: view.head.serial, to, mailId } });
+		return { to, mailId };
+	});
+	return { to, sent: await deliverQueued([mailId]) };
 }

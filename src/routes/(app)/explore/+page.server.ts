@@ -1,11 +1,8 @@
-import { isHttpError } from '@sveltejs/kit';
 import { z } from 'zod';
 import { readFilters } from '$lib/filters';
 import { READING_SORTS, type ReadingSort } from '$lib/schemas/readings';
 import { familiesFor } from '$lib/server/services/analysis';
-import { db } from '$lib/server/db';
-import { withShop } from '$lib/server/db/scope';
-import { countsOf, readingSelection, readingsPageOf } from '$lib/server/services/readings';
+import { exploreReadings } from '$lib/server/services/explore';
 import type { PageServerLoad } from './$types';
 
 const PAGE_SIZE = 50;
@@ -22,15 +19,5 @@ export const load: PageServerLoad = async (event) => {
 	const { filters } = readFilters(event.url.searchParams);
 	const { page, sort } = paging.parse({ page: event.url.searchParams.get('page') ?? undefined, sort: event.url.searchParams.get('sort') ?? undefined });
 	const q = { ...filters, page, pageSize: PAGE_SIZE, sort };
-	try {
-		return await withShop(db, shopId, async (tx) => {
-			const sel = await readingSelection(tx, shopId, q);
-			const [table, counts] = await Promise.all([readingsPageOf(tx, shopId, q, sel), countsOf(tx, shopId, sel)]);
-			return { families, filters, table, counts, problem: null };
-		});
-	} catch (e) {
-		// A family that is gone (an old bookmark): say so on the page rather than fail it.
-		if (isHttpError(e) && e.status === 404) return { families, filters, table: null, counts: [], problem: e.body.message };
-		throw e;
-	}
+	return { families, filters, ...(await exploreReadings(shopId, q)) };
 };

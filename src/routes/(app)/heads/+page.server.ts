@@ -3,10 +3,7 @@ import { nonEmpty } from '$lib/schemas/audit';
 import { headFilterSchema } from '$lib/schemas/heads';
 import { requireRole } from '$lib/server/auth/guards';
 import { roleAtLeast } from '$lib/server/auth/access';
-import { db } from '$lib/server/db';
-import { withShop } from '$lib/server/db/scope';
-import { listFamilies } from '$lib/server/queries/families';
-import { listHeads } from '$lib/server/queries/heads';
+import { headsPage } from '$lib/server/services/heads';
 import type { PageServerLoad } from './$types';
 
 const PAGE_SIZE = 50;
@@ -18,16 +15,6 @@ export const load: PageServerLoad = async (event) => {
 	const parsed = headFilterSchema.safeParse(nonEmpty(event.url.searchParams));
 	if (!parsed.success) error(400, parsed.error.issues.map((i) => `${i.path.join('.')}: ${i.message}`).join('; '));
 	const filter = parsed.data;
-	return withShop(db, actor.shopId, async (tx) => {
-		const { rows, total } = await listHeads(tx, actor.shopId, { ...filter, pageSize: PAGE_SIZE });
-		const families = await listFamilies(tx, actor.shopId);
-		return {
-			filter,
-			rows,
-			total,
-			pageSize: PAGE_SIZE,
-			families: families.map((f) => ({ id: f.id, code: f.code })),
-			canIntake: roleAtLeast(actor.role, 'machinist')
-		};
-	});
+	const { rows, total, families } = await headsPage(actor.shopId, filter, PAGE_SIZE);
+	return { filter, rows, total, pageSize: PAGE_SIZE, families, canIntake: roleAtLeast(actor.role, 'machinist') };
 };

@@ -4,22 +4,19 @@ import { calibrationSchema, instrumentSchema, retireSchema } from '$lib/schemas/
 import { toCanonical } from '$lib/measurements';
 import { roleAtLeast } from '$lib/server/auth/access';
 import { requireRole } from '$lib/server/auth/guards';
-import { db } from '$lib/server/db';
-import { withShop } from '$lib/server/db/scope';
+import { orError } from '$lib/server/http';
 import { whoIs } from '$lib/server/params';
-import { audit } from '$lib/server/queries/audit';
-import { calibrationHistory, insertInstrument, instrumentById, listInstruments, recordCalibration, serialInUse, setRetired } from '$lib/server/queries/instruments';
 import { today } from '$lib/server/services/head-view';
+import { calibrateInstrument, instrumentsAndHistory, registerInstrument, retireInstrument } from '$lib/server/services/instruments';
+import { orRefuse } from '../_refusal';
 import type { Actions, PageServerLoad } from './$types';
 
 const DUE_SOON_DAYS = 30;
 
 export const load: PageServerLoad = async (event) => {
 	const actor = requireRole(event, 'machinist');
-	return withShop(db, actor.shopId, async (tx) => {
-		const [list, history] = await Promise.all([listInstruments(tx, actor.shopId), calibrationHistory(tx, actor.shopId)]);
-		return { instruments: list, history, dueSoonDays: DUE_SOON_DAYS, today: today(), canEdit: roleAtLeast(actor.role, 'engineer') };
-	});
+	const { instruments, history } = await instrumentsAndHistory(actor.shopId);
+	return { instruments, history, dueSoonDays: DUE_SOON_DAYS, today: today(), canEdit: roleAtLeast(actor.role, 'engineer') };
 };
 
 export const actions: Actions = {
@@ -32,12 +29,14 @@ export const actions: Actions = {
 		if (d.calibratedOn > today()) return fail(400, { action: 'create', values: raw, errors: { calibratedOn: 'A calibration cannot be in the future.' } });
 		const resolutionMm = d.resolution === null ? null : d.resolutionUnit === 'um' ? d.resolution / 1000 : toCanonical(d.resolution, d.resolutionUnit);
 		if (resolutionMm !== null && (resolutionMm <= 0 || resolutionMm > 1)) return fail(400, { action: 'create', values: raw, errors: { resolution: 'A resolution is above zero and at most 1 mm.' } });
-		return withShop(db, actor.shopId, async (tx) => {
-			if (await serialInUse(tx, actor.shopId, d.serial)) return fail(409, { action: 'create', values: raw, errors: { serial: `A gauge with serial ${d.serial} is already registered.` } });
-			const row = await insertInstrument(tx, { shopId: actor.shopId, name: d.name, kind: d.kind, serial: d.serial, resolutionMm, calibratedOn: d.calibratedOn, intervalDays: d.intervalDays }, actor.userId);
-			await audit(tx, actor.shopId, whoIs(actor), { entity: 'instrument', entityId: row.id, action: 'create', after: { name: d.name, kind: d.kind, serial: d.serial, resolutionMm, calibratedOn: d.calibratedOn, intervalDays: d.intervalDays } });
-			return { action: 'create', ok: true, message: `${d.name} registered.` };
-		});
+		const gauge = { name: d.name, kind: d.kind, serial: d.serial, resolutionMm, calibratedOn: d.calibratedOn, intervalDays: d.intervalDays };
+		return orRefuse(
+			async () => {
+				await registerInstrument(actor.shopId, whoIs(actor), gauge);
+				return { action: 'create', ok: true, message: `${d.name} registered.` };
+			},
+			(e) => ({ action: 'create', values: raw, errors: e.fields })
+		);
 	},
 	calibrate: async (event) => {
 		const actor = requireRole(event, 'engineer');
@@ -49,30 +48,15 @@ export const actions: Actions = {
 		}
 		const d = parsed.data;
 		if (d.calibratedOn > today()) return fail(400, { action: 'calibrate', id: d.id, values: raw, errors: { calibratedOn: 'A calibration cannot be in the future.' } });
-		return withShop(db, actor.shopId, async (tx) => {
-			const before = await recordCalibration(tx, { shopId: actor.shopId, instrumentId: d.id, calibratedOn: d.calibratedOn, intervalDays: d.intervalDays, note: d.note, recordedBy: actor.userId });
-			if (!before) error(404, 'No such gauge in this shop.');
-			await audit(tx, actor.shopId, whoIs(actor), {
-				entity: 'instrument',
-				entityId: d.id,
-				action: 'update',
-				before: { calibratedOn: before.calibratedOn, intervalDays: before.intervalDays },
-				after: { calibratedOn: d.calibratedOn, intervalDays: d.intervalDays, note: d.note }
-			});
-			return { action: 'calibrate', id: d.id, ok: true, message: `Calibration of ${before.name} on ${d.calibratedOn} recorded.` };
-		});
+		const name = await orError(() => calibrateInstrument(actor.shopId, whoIs(actor), d));
+		return { action: 'calibrate', id: d.id, ok: true, message: `Calibration of ${name} on ${d.calibratedOn} recorded.` };
 	},
 	retire: async (event) => {
 		const actor = requireRole(event, 'engineer');
 		const parsed = retireSchema.safeParse(Object.fromEntries(await event.request.formData()));
 		if (!parsed.success) error(404, 'No such gauge in this shop.');
-		return withShop(db, actor.shopId, async (tx) => {
-			const before = await instrumentById(tx, actor.shopId, parsed.data.id);
-			if (!before) error(404, 'No such gauge in this shop.');
-			const retired = parsed.data.retired === 'yes';
-			await setRetired(tx, actor.shopId, before.id, retired);
-			await audit(tx, actor.shopId, whoIs(actor), { entity: 'instrument', entityId: before.id, action: 'update', before: { retired: before.retired }, after: { retired } });
-			return { action: 'retire', ok: true, message: retired ? `${before.name} retired: it is no longer offered in the grid.` : `${before.name} back in use.` };
-		});
+		const retired = parsed.data.retired === 'yes';
+		const name = await orError(() => retireInstrument(actor.shopId, whoIs(actor), parsed.data.id, retired));
+		return { action: 'retire', ok: true, message: retired ? `${name} retired: it is no longer offered in the grid.` : `${name} back in use.` };
 	}
 };

@@ -2,31 +2,18 @@ import { fail, redirect } from '@sveltejs/kit';
 import { fieldErrors } from '$lib/schemas/auth';
 import { intakeSchema, leakRowSchema } from '$lib/schemas/heads';
 import { requireRole } from '$lib/server/auth/guards';
-import { db } from '$lib/server/db';
-import { withShop } from '$lib/server/db/scope';
 import { whoIs } from '$lib/server/params';
-import { listFamilies } from '$lib/server/queries/families';
-import { customerEmails, customersOf } from '$lib/server/queries/heads';
 import { today } from '$lib/server/services/head-view';
-import { intakeHead, type LeakEntry } from '$lib/server/services/heads';
+import { intakeChoices, takeInHead, type LeakEntry } from '$lib/server/services/heads';
+import { orRefuse } from '../../_refusal';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
 	const actor = requireRole(event, 'machinist');
-	return withShop(db, actor.shopId, async (tx) => ({
-		families: (await listFamilies(tx, actor.shopId)).map((f) => ({ id: f.id, code: f.code, description: f.description, cylinders: f.cylinders })),
-		customers: await customersOf(tx, actor.shopId),
-		emails: await customerEmails(tx, actor.shopId),
-		today: today()
-	}));
+	return { ...(await intakeChoices(actor.shopId)), today: today() };
 };
 
 const str = (v: FormDataEntryValue | null) => (typeof v === 'string' ? v : '');
-
-function violates(e: unknown, constraint: string): boolean {
-	const cause = ((e as { cause?: unknown })?.cause ?? e) as { code?: string; constraint_name?: string };
-	return cause?.code === '23505' && cause.constraint_name === constraint;
-}
 
 export const actions: Actions = {
 	default: async (event) => {
@@ -48,15 +35,13 @@ export const actions: Actions = {
 		if (!parsed.success || Object.keys(errors).length) {
 			return fail(400, { values: raw, errors: { form: 'The head was not saved: correct the fields marked.', ...errors } });
 		}
-		let result;
-		try {
-			result = await withShop(db, actor.shopId, (tx) => intakeHead(tx, actor.shopId, whoIs(actor), { ...parsed.data, leaks }));
-		} catch (e) {
-			// Two people taking in the same serial at the same moment: the second is told so.
-			if (violates(e, 'heads_shop_serial_key')) return fail(409, { values: raw, errors: { form: 'The head was not saved.', serial: `Head ${parsed.data.serial} was just taken in by someone else.` } });
-			throw e;
-		}
-		if (!result.ok) return fail(result.code, { values: raw, errors: { form: result.message, ...result.errors } });
-		redirect(303, `/heads/${result.head.id}?taken=1`);
+		const data = { ...parsed.data, leaks };
+		return orRefuse(
+			async () => {
+				const head = await takeInHead(actor.shopId, whoIs(actor), data);
+				redirect(303, `/heads/${head.id}?taken=1`);
+			},
+			(e) => ({ values: raw, errors: { form: e.message, ...e.fields } })
+		);
 	}
 };

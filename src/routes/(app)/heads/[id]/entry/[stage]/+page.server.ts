@@ -1,12 +1,12 @@
-import { error, fail } from '@sveltejs/kit';
+import { error } from '@sveltejs/kit';
 import { STAGE_MEASUREMENTS, stageFromSlug, posLabel, BORE_CELLS } from '$lib/inspection';
 import { roleAtLeast } from '$lib/server/auth/access';
 import { requireRole } from '$lib/server/auth/guards';
-import { db } from '$lib/server/db';
-import { withShop } from '$lib/server/db/scope';
+import { orError } from '$lib/server/http';
 import { idParam, whoIs } from '$lib/server/params';
-import { EntryRefused, saveEntries, type EntryInput } from '$lib/server/services/entry';
-import { gaugeList, loadHeadView } from '$lib/server/services/head-view';
+import { EntryRefused, saveGridEntries, type EntryInput } from '$lib/server/services/entry';
+import { gaugeList, headView } from '$lib/server/services/head-view';
+import { orRefuse } from '../../../../_refusal';
 import type { Actions, PageServerLoad } from './$types';
 
 function stageParam(slug: string) {
@@ -19,32 +19,29 @@ export const load: PageServerLoad = async (event) => {
 	const actor = requireRole(event, 'viewer');
 	const id = idParam(event.params.id);
 	const stage = stageParam(event.params.stage);
-	return withShop(db, actor.shopId, async (tx) => {
-		const view = await loadHeadView(tx, actor.shopId, id, { fleet: stage });
-		if (!view) error(404, 'No such head in this shop.');
-		const { head, family } = view;
-		return {
-			head: { id: head.id, serial: head.serial, status: head.status, customer: head.customer, releasedOn: head.releasedOn },
-			family: { code: family.code, cylinders: family.cylinders, intakeValves: family.intakeValves, exhaustValves: family.exhaustValves },
-			stage,
-			measurements: STAGE_MEASUREMENTS[stage],
-			rows: view.stages[stage].map((p) => ({
-				key: p.key,
-				pos: p.pos,
-				label: posLabel(p.pos, family),
-				cells: Object.fromEntries(
-					Object.entries(p.cells).map(([m, c]) => [m, { value: c!.value, day: c!.day, instrumentId: c!.instrumentId, by: c!.measuredBy, fromImport: c!.fromImport }])
-				),
-				bores: Object.fromEntries(BORE_CELLS.filter((k) => p.bores[k]).map((k) => [k, { value: p.bores[k]!.value, day: p.bores[k]!.day, instrumentId: p.bores[k]!.instrumentId }]))
-			})),
-			limits: view.limits,
-			marks: view.marks,
-			fleet: view.fleet[stage],
-			gauges: gaugeList(view.gauges).map((g) => ({ id: g.id, name: g.name, serial: g.serial, kind: g.kind, retired: g.retired, calibrations: g.calibrations })),
-			today: view.today,
-			canEdit: roleAtLeast(actor.role, 'machinist') && head.status !== 'released'
-		};
-	});
+	const view = await orError(() => headView(actor.shopId, id, { fleet: stage }));
+	const { head, family } = view;
+	return {
+		head: { id: head.id, serial: head.serial, status: head.status, customer: head.customer, releasedOn: head.releasedOn },
+		family: { code: family.code, cylinders: family.cylinders, intakeValves: family.intakeValves, exhaustValves: family.exhaustValves },
+		stage,
+		measurements: STAGE_MEASUREMENTS[stage],
+		rows: view.stages[stage].map((p) => ({
+			key: p.key,
+			pos: p.pos,
+			label: posLabel(p.pos, family),
+			cells: Object.fromEntries(
+				Object.entries(p.cells).map(([m, c]) => [m, { value: c!.value, day: c!.day, instrumentId: c!.instrumentId, by: c!.measuredBy, fromImport: c!.fromImport }])
+			),
+			bores: Object.fromEntries(BORE_CELLS.filter((k) => p.bores[k]).map((k) => [k, { value: p.bores[k]!.value, day: p.bores[k]!.day, instrumentId: p.bores[k]!.instrumentId }]))
+		})),
+		limits: view.limits,
+		marks: view.marks,
+		fleet: view.fleet[stage],
+		gauges: gaugeList(view.gauges).map((g) => ({ id: g.id, name: g.name, serial: g.serial, kind: g.kind, retired: g.retired, calibrations: g.calibrations })),
+		today: view.today,
+		canEdit: roleAtLeast(actor.role, 'machinist') && head.status !== 'released'
+	};
 };
 
 /** The grid's form: `c|<position>|<field>` values (with `o|…` holding what the page showed, so a
@@ -75,16 +72,12 @@ export const actions: Actions = {
 		const stage = stageParam(event.params.stage);
 		const input = readForm(await event.request.formData());
 		if (input.cells.length === 0) return { ok: true, changed: 0, message: 'Nothing had changed.' };
-		try {
-			const r = await withShop(db, actor.shopId, (tx) => saveEntries(tx, actor.shopId, whoIs(actor), id, stage, input));
-			if (!r.ok) {
-				if (r.code === 404) error(404, r.message);
-				return fail(r.code, { message: r.message, errors: r.errors });
-			}
-			return { ok: true, changed: r.changed, status: r.status, message: r.changed ? `Saved ${r.changed} value${r.changed === 1 ? '' : 's'}.` : 'Nothing had changed.' };
-		} catch (e) {
-			if (e instanceof EntryRefused) return fail(400, { message: `Nothing was saved: ${e.message}`, errors: e.errors });
-			throw e;
-		}
+		return orRefuse(
+			async () => {
+				const r = await saveGridEntries(actor.shopId, whoIs(actor), id, stage, input);
+				return { ok: true, changed: r.changed, status: r.status, message: r.changed ? `Saved ${r.changed} value${r.changed === 1 ? '' : 's'}.` : 'Nothing had changed.' };
+			},
+			(e) => ({ message: e instanceof EntryRefused ? `Nothing was saved: ${e.message}` : e.message, errors: e.fields })
+		);
 	}
 };
