@@ -55,23 +55,24 @@ export async function orError<T>(work: () => Promise<T>): Promise<T> {
 	}
 }
 
-/** Runs a form action's `work`; a DomainError becomes `fail(status, { message, errors, … })`
- * with `extra` (what the form should show again) and the error's details. */
-export async function orFail<T, E extends Record<string, unknown> = Record<string, never>>(
+/**
+ * Runs a form action's `work`. A DomainError whose status is in `page` (404 by default: the
+ * record is not there, as the page's load would answer) becomes the error page; any other is the
+ * form's failure, `fail(status, shape(e))`, shaped as that form shows its refusals (by default
+ * `{ message, errors }`).
+ */
+export async function orFail<T, F extends Record<string, unknown> = { message: string; errors: Record<string, string> }>(
 	work: () => Promise<T>,
-	extra?: E
-): Promise<T | ActionFailure<E & { message: string; errors: Record<string, string> } & Record<string, unknown>>> {
+	shape: (e: DomainError) => F = (e) => ({ message: e.message, errors: e.fields }) as unknown as F,
+	page: readonly number[] = [404]
+): Promise<T | ActionFailure<F>> {
 	try {
 		return await work();
 	} catch (e) {
 		if (!isDomainError(e)) throw e;
-		return failWith(e, extra);
+		if (page.includes(e.status)) error(e.status, e.message);
+		return fail(e.status, shape(e));
 	}
-}
-
-/** A DomainError as a form action's failure (see orFail). */
-export function failWith<E extends Record<string, unknown>>(e: DomainError, extra?: E) {
-	return fail(e.status, { ...(extra as E), ...e.details, message: e.message, errors: e.fields });
 }
 
 /** A DomainError as the API's JSON answer: `{ message, …details, errors? }` with its status. */

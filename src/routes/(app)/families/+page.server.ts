@@ -5,7 +5,7 @@ import { roleAtLeast } from '$lib/server/auth/access';
 import { requireRole } from '$lib/server/auth/guards';
 import { whoIs } from '$lib/server/params';
 import { createFamily, familiesOverview, familyStems, saveSealPassMarks } from '$lib/server/services/families';
-import { orRefuse } from '../_refusal';
+import { orFail } from '$lib/server/http';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
@@ -22,7 +22,7 @@ export const actions: Actions = {
 		const d = parsed.data;
 		const { stems, errors } = familyStems(d);
 		if (Object.keys(errors).length) return fail(400, { action: 'create', values: raw, errors });
-		return orRefuse(
+		return orFail(
 			async () => {
 				const id = await createFamily(actor.shopId, whoIs(actor), d, stems);
 				redirect(303, `/families/${id}?created=1`);

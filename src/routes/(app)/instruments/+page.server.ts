@@ -4,11 +4,10 @@ import { calibrationSchema, instrumentSchema, retireSchema } from '$lib/schemas/
 import { toCanonical } from '$lib/measurements';
 import { roleAtLeast } from '$lib/server/auth/access';
 import { requireRole } from '$lib/server/auth/guards';
-import { orError } from '$lib/server/http';
+import { orError, orFail } from '$lib/server/http';
 import { whoIs } from '$lib/server/params';
 import { today } from '$lib/server/services/head-view';
 import { calibrateInstrument, instrumentsAndHistory, registerInstrument, retireInstrument } from '$lib/server/services/instruments';
-import { orRefuse } from '../_refusal';
 import type { Actions, PageServerLoad } from './$types';
 
 const DUE_SOON_DAYS = 30;
@@ -30,7 +29,7 @@ export const actions: Actions = {
 		const resolutionMm = d.resolution === null ? null : d.resolutionUnit === 'um' ? d.resolution / 1000 : toCanonical(d.resolution, d.resolutionUnit);
 		if (resolutionMm !== null && (resolutionMm <= 0 || resolutionMm > 1)) return fail(400, { action: 'create', values: raw, errors: { resolution: 'A resolution is above zero and at most 1 mm.' } });
 		const gauge = { name: d.name, kind: d.kind, serial: d.serial, resolutionMm, calibratedOn: d.calibratedOn, intervalDays: d.intervalDays };
-		return orRefuse(
+		return orFail(
 			async () => {
 				await registerInstrument(actor.shopId, whoIs(actor), gauge);
 				return { action: 'create', ok: true, message: `${d.name} registered.` };

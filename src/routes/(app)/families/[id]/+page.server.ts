@@ -4,11 +4,10 @@ import { familySchema, limitSchema } from '$lib/schemas/families';
 import { isUnit, MEASUREMENT_INFO, toCanonical, unitFits } from '$lib/measurements';
 import { roleAtLeast } from '$lib/server/auth/access';
 import { requireRole } from '$lib/server/auth/guards';
-import { orError } from '$lib/server/http';
+import { orError, orFail } from '$lib/server/http';
 import { idParam, whoIs } from '$lib/server/params';
 import { addLimitVersion, editFamily, familyLimits, familyStems } from '$lib/server/services/families';
 import { today } from '$lib/server/services/head-view';
-import { orRefuse } from '../../_refusal';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
@@ -27,7 +26,7 @@ export const actions: Actions = {
 		const d = parsed.data;
 		const { stems, errors } = familyStems(d);
 		if (Object.keys(errors).length) return fail(400, { action: 'update', values: raw, errors });
-		return orRefuse(
+		return orFail(
 			async () => {
 				await editFamily(actor.shopId, whoIs(actor), id, d, stems);
 				return { action: 'update', ok: true, message: 'Family saved.' };

@@ -4,13 +4,12 @@ import { comebackSchema, releaseSchema } from '$lib/schemas/heads';
 import { posLabel } from '$lib/inspection';
 import { roleAtLeast } from '$lib/server/auth/access';
 import { requireRole } from '$lib/server/auth/guards';
-import { orError } from '$lib/server/http';
+import { orError, orFail } from '$lib/server/http';
 import { idParam, whoIs } from '$lib/server/params';
 import { DECISION_LABEL } from '$lib/server/services/decisions';
 import { headView, releaseBlockers } from '$lib/server/services/head-view';
 import { registerComeback, release } from '$lib/server/services/heads';
 import { emailHeadReport } from '$lib/server/services/report';
-import { orRefuse } from '../../_refusal';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
@@ -62,7 +61,7 @@ export const actions: Actions = {
 		// Releasing over a failing check is the owner's decision alone.
 		if (override) requireRole(event, 'owner');
 		const how = { override, reason: parsed.data.reason, isOwner: actor.role === 'owner' };
-		return orRefuse(
+		return orFail(
 			async () => {
 				const r = await release(actor.shopId, whoIs(actor), id, how);
 				return { action: 'release', ok: true, message: r.overridden ? `Released on ${r.releasedOn} over the open checks; the reason is on record.` : `Released on ${r.releasedOn}.` };
@@ -74,7 +73,7 @@ export const actions: Actions = {
 	emailReport: async (event) => {
 		const actor = requireRole(event, 'machinist');
 		const id = idParam(event.params.id);
-		return orRefuse(
+		return orFail(
 			async () => {
 				const { to, sent } = await emailHeadReport(actor.shopId, actor.shopName, whoIs(actor), id);
 				return {
@@ -100,7 +99,7 @@ export const actions: Actions = {
 		const parsed = comebackSchema.safeParse(raw);
 		if (!parsed.success) return fail(400, { action: 'comeback', message: 'The comeback was not saved: correct the fields marked.', values: raw, errors: fieldErrors(parsed.error) });
 		const data = parsed.data;
-		return orRefuse(
+		return orFail(
 			async () => {
 				const head = await registerComeback(actor.shopId, whoIs(actor), id, data);
 				return { action: 'comeback', ok: true, message: `Comeback recorded as job ${head.serial}.`, comebackId: head.id };

@@ -5,7 +5,7 @@ import { requireRole } from '$lib/server/auth/guards';
 import { whoIs } from '$lib/server/params';
 import { today } from '$lib/server/services/head-view';
 import { intakeChoices, takeInHead, type LeakEntry } from '$lib/server/services/heads';
-import { orRefuse } from '../../_refusal';
+import { orFail } from '$lib/server/http';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
@@ -36,7 +36,7 @@ export const actions: Actions = {
 			return fail(400, { values: raw, errors: { form: 'The head was not saved: correct the fields marked.', ...errors } });
 		}
 		const data = { ...parsed.data, leaks };
-		return orRefuse(
+		return orFail(
 			async () => {
 				const head = await takeInHead(actor.shopId, whoIs(actor), data);
 				redirect(303, `/heads/${head.id}?taken=1`);

@@ -5,12 +5,11 @@ import { MEASUREMENT_INFO, type Measurement } from '$lib/measurements';
 import { posLabel } from '$lib/inspection';
 import { roleAtLeast } from '$lib/server/auth/access';
 import { requireRole } from '$lib/server/auth/guards';
-import { orError } from '$lib/server/http';
+import { orError, orFail } from '$lib/server/http';
 import { idParam, whoIs } from '$lib/server/params';
 import { DECISION_LABEL } from '$lib/server/services/decisions';
 import { headView } from '$lib/server/services/head-view';
 import { acceptSuggestions, decide } from '$lib/server/services/heads';
-import { orRefuse } from '../../../_refusal';
 import type { Actions, PageServerLoad } from './$types';
 
 const SHOWN: Measurement[] = ['stem_diameter', 'guide_bore', 'clearance', 'face_runout', 'seat_runout', 'seat_width', 'margin'];
@@ -56,7 +55,7 @@ export const actions: Actions = {
 		const parsed = decideSchema.safeParse(raw);
 		if (!parsed.success) return fail(400, { pos: String(raw.pos ?? ''), message: 'The decision was not recorded.', errors: fieldErrors(parsed.error) });
 		const { pos, kind, note, acknowledge } = parsed.data;
-		return orRefuse(
+		return orFail(
 			async () => {
 				const changed = await decide(actor.shopId, whoIs(actor), id, { pos, kind, note, acknowledge: acknowledge === 'on' });
 				return { pos, ok: true, message: changed ? `${DECISION_LABEL[kind]}: recorded.` : 'No change.' };

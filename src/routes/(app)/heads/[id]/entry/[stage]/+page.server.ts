@@ -2,11 +2,10 @@ import { error } from '@sveltejs/kit';
 import { STAGE_MEASUREMENTS, stageFromSlug, posLabel, BORE_CELLS } from '$lib/inspection';
 import { roleAtLeast } from '$lib/server/auth/access';
 import { requireRole } from '$lib/server/auth/guards';
-import { orError } from '$lib/server/http';
+import { orError, orFail } from '$lib/server/http';
 import { idParam, whoIs } from '$lib/server/params';
 import { EntryRefused, saveGridEntries, type EntryInput } from '$lib/server/services/entry';
 import { gaugeList, headView } from '$lib/server/services/head-view';
-import { orRefuse } from '../../../../_refusal';
 import type { Actions, PageServerLoad } from './$types';
 
 function stageParam(slug: string) {
@@ -72,7 +71,7 @@ export const actions: Actions = {
 		const stage = stageParam(event.params.stage);
 		const input = readForm(await event.request.formData());
 		if (input.cells.length === 0) return { ok: true, changed: 0, message: 'Nothing had changed.' };
-		return orRefuse(
+		return orFail(
 			async () => {
 				const r = await saveGridEntries(actor.shopId, whoIs(actor), id, stage, input);
 				return { ok: true, changed: r.changed, status: r.status, message: r.changed ? `Saved ${r.changed} value${r.changed === 1 ? '' : 's'}.` : 'Nothing had changed.' };
