@@ -69,6 +69,6 @@ group('stats index', () => {
 		expect(cc.ucl).toBeCloseTo(2 + 2.66 * 1.5, 12);
 		expect(cc.mrUcl).toBeCloseTo(3.267 * 1.5, 12);
 		expect(stats.linearFit([1, 2, 3], [2, 4, 6])).toMatchObject({ n: 3, slope: 2, intercept: 0, r2: 1, df: 1 });
-		expect(stats.CONTROL_CHART_CONSTANTS[2].d2).toBe(1.128); // REFERENCES.md B5
+		expect(stats.CONTROL_CHART_CONSTANTS[2].d2).toBe(1.128); // docs/REFERENCES.md B5
 	});
 });
