@@ -1,6 +1,6 @@
 #!/usr/bin/env bash
-# npm test: everything from a fresh clone to a full test run (unit, database, browser), ending
-# with one line "N passed, N failed".
+# npm test: everything from a fresh clone to a full test run (unit, database, browser, and
+# svelte-check's types as one more test), ending with one line "N passed, N failed".
 set -uo pipefail
 cd "$(dirname "$0")/.."
 . scripts/common.sh
@@ -55,15 +55,20 @@ rm -f "$RESULTS"
 npx vitest run --reporter=default --reporter=json --outputFile.json="$RESULTS" "$@"
 STATUS=$?
 
+# The types of every .ts and .svelte file (svelte-check), counted as one more test.
+log "svelte-check (npm run check)"
+if npm run --silent check; then CHECK_FAILED=0; else CHECK_FAILED=1; STATUS=1; fi
+
 if [ -s "$RESULTS" ]; then
 	# Failed tests, plus files that failed without a failing test (an import error, say).
 	node -e '
 		const r = JSON.parse(require("fs").readFileSync(process.argv[1], "utf8"));
 		const broken = (r.testResults || []).filter((f) => f.status === "failed" && !f.assertionResults.some((a) => a.status === "failed")).length;
-		console.log(`${r.numPassedTests} passed, ${r.numFailedTests + broken} failed`);
-	' "$RESULTS"
+		const check = Number(process.argv[2]);
+		console.log(`${r.numPassedTests + 1 - check} passed, ${r.numFailedTests + broken + check} failed`);
+	' "$RESULTS" "$CHECK_FAILED"
 else
-	echo "0 passed, 1 failed"
+	echo "$((1 - CHECK_FAILED)) passed, $((1 + CHECK_FAILED)) failed"
 	[ "$STATUS" = 0 ] && STATUS=1
 fi
 log "tests took $(( $(date +%s) - T0 )) s in all"

@@ -1,33 +1,56 @@
-// Numbers and dates as the analytics pages show them.
+// Numbers, limits, shares, p-values and dates as every page, chart and table writes them. One
+// convention: an em dash '—' for a value that is missing (the en dash '–' joins a range), and
+// one-sided limits in words ("at most 0.080"), which read the same aloud as on screen.
 import { MEASUREMENT_INFO, UNIT_LABEL, type Measurement } from './measurements';
+
+/** What a cell shows for a missing value. */
+export const MISSING = '—';
 
 const int = new Intl.NumberFormat('en-US');
 
+/** A count with thousands separators, e.g. "12,345". */
 export const count = (n: number) => int.format(n);
+export const fmtCount = count;
 
-/** A value of a measurement in its canonical unit, with the unit, at the measurement's decimals. */
-export function measured(m: Measurement, value: number | null | undefined, withUnit = true): string {
-	if (value === null || value === undefined) return '—';
-	const info = MEASUREMENT_INFO[m];
-	const text = value.toFixed(info.decimals);
-	return withUnit ? `${text} ${UNIT_LABEL[info.unit]}` : text;
+export function unitOf(m: Measurement): string {
+	return UNIT_LABEL[MEASUREMENT_INFO[m].unit];
+}
+/** Axis label: "Stem-to-guide clearance (mm)". */
+export function axisLabel(m: Measurement): string {
+	return `${MEASUREMENT_INFO[m].label} (${unitOf(m)})`;
+}
+
+/** A value in the measurement's canonical unit, with its usual decimals (`extra` more for summaries). */
+export function fmtValue(m: Measurement, x: number | null | undefined, extra = 0): string {
+	if (x === null || x === undefined || !Number.isFinite(x)) return MISSING;
+	return x.toFixed(MEASUREMENT_INFO[m].decimals + extra);
+}
+/** The same with the unit: "0.052 mm". */
+export function fmtWithUnit(m: Measurement, x: number | null | undefined, extra = 0): string {
+	const s = fmtValue(m, x, extra);
+	return s === MISSING ? s : `${s} ${unitOf(m)}`;
+}
+
+/** Limits: "0.020 – 0.080", "at most 0.080", "at least 1.00" or "none set"; `withUnit` adds " mm". */
+export function fmtLimits(m: Measurement, limits: { min: number | null; max: number | null } | null | undefined, withUnit = false): string {
+	const min = limits?.min ?? null;
+	const max = limits?.max ?? null;
+	const unit = withUnit ? ` ${unitOf(m)}` : '';
+	if (min !== null && max !== null) return `${fmtValue(m, min)} – ${fmtValue(m, max)}${unit}`;
+	if (max !== null) return `at most ${fmtValue(m, max)}${unit}`;
+	if (min !== null) return `at least ${fmtValue(m, min)}${unit}`;
+	return 'none set';
 }
 
 /** A share as a percentage, e.g. 0.1234 → "12.3 %". */
-export function percent(x: number | null | undefined, digits = 1): string {
-	return x === null || x === undefined ? '—' : `${(x * 100).toFixed(digits)} %`;
+export function fmtPct(x: number | null | undefined, decimals = 1): string {
+	if (x === null || x === undefined || !Number.isFinite(x)) return MISSING;
+	return `${(x * 100).toFixed(decimals)} %`;
 }
 
 /** An ISO timestamp as "2026-01-31 14:05" (UTC). */
 export function stamp(iso: string): string {
 	return `${iso.slice(0, 10)} ${iso.slice(11, 16)}`;
-}
-
-/** A limit pair, e.g. "0.020–0.080 mm", "≤ 0.080 mm", or "none". */
-export function limitRange(m: Measurement, l: { min: number | null; max: number | null } | null): string {
-	if (!l || (l.min === null && l.max === null)) return 'none';
-	if (l.min !== null && l.max !== null) return `${measured(m, l.min, false)}–${measured(m, l.max)}`;
-	return l.max !== null ? `≤ ${measured(m, l.max)}` : `≥ ${measured(m, l.min)}`;
 }
 
 /** A p-value as printed: "p = 0.031", "p < 0.001". */

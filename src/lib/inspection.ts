@@ -15,6 +15,8 @@ import {
 	type Stage,
 	type Unit
 } from './measurements';
+import { addDays } from './domain/days';
+import { MODIFIED_Z_FACTOR, MODIFIED_Z_THRESHOLD, modifiedZ } from './domain/robust';
 
 // ---------------------------------------------------------------------------------------------
 // Positions
@@ -166,15 +168,9 @@ export function clearanceOf(largestBore: number | null, stem: number | null | un
 }
 
 // ---------------------------------------------------------------------------------------------
-// Dates (YYYY-MM-DD, UTC, as PostgreSQL's date type)
+// Dates (YYYY-MM-DD, UTC, as PostgreSQL's date type): $lib/domain/days
 
-export function addDays(day: string, n: number): string {
-	const t = Date.parse(`${day}T00:00:00Z`) + n * 86_400_000;
-	return new Date(t).toISOString().slice(0, 10);
-}
-export function daysBetween(from: string, to: string): number {
-	return Math.round((Date.parse(`${to}T00:00:00Z`) - Date.parse(`${from}T00:00:00Z`)) / 86_400_000);
-}
+export { addDays, daysBetween } from './domain/days';
 
 // ---------------------------------------------------------------------------------------------
 // Checks
@@ -240,14 +236,14 @@ export interface FleetStat {
 
 /** Fewer readings than this and the fleet says nothing about a value. */
 export const FLEET_MIN = 30;
-/** Iglewicz & Hoaglin (1993): |0.6745·(x − median)/MAD| > 3.5 marks a potential outlier. The
- * server's statistics use the same score (src/lib/server/stats/robust.ts, modifiedZ). */
-export const ROBUST_Z_FACTOR = 0.6745;
-export const ROBUST_Z_LIMIT = 3.5;
+/** Iglewicz & Hoaglin (1993): |0.6745·(x − median)/MAD| > 3.5 marks a potential outlier: the
+ * modified z-score of $lib/domain/robust, which the server's statistics use too. */
+export const ROBUST_Z_FACTOR = MODIFIED_Z_FACTOR;
+export const ROBUST_Z_LIMIT = MODIFIED_Z_THRESHOLD;
 
 export function robustZ(value: number, fleet: FleetStat | null | undefined): number | null {
-	if (!fleet || fleet.n < FLEET_MIN || !(fleet.mad > 0)) return null;
-	return (ROBUST_Z_FACTOR * (value - fleet.median)) / fleet.mad;
+	if (!fleet || fleet.n < FLEET_MIN) return null;
+	return modifiedZ(value, fleet.median, fleet.mad);
 }
 
 export function fleetFlag(value: number, m: Measurement, fleet: FleetStat | null | undefined, what: string): Flag | null {

@@ -258,9 +258,9 @@ describe('summaries stay equal to a full recomputation', () => {
 
 	it('stay numerically stable under many Chan merges (NIST StRD NumAcc construction, shifted)', async () => {
 		// NIST StRD NumAcc2/NumAcc3 are built as a first value and 500 pairs (x.1, x.3) around it:
-		// mean x.2 and SD 0.1 exactly (REFERENCES.md B1). Here x = 3599 (fluid hold, within the
+		// mean x.2 and SD 0.1 exactly (docs/REFERENCES.md B1). Here x = 3599 (fluid hold, within the
 		// plausible range), sent in 11 statements so the stored moments are merged 10 times; GSL's
-		// tolerance for NumAcc3's SD is 1e-9 relative (REFERENCES.md B1).
+		// tolerance for NumAcc3's SD is 1e-9 relative (docs/REFERENCES.md B1).
 		const head = await newHead('2026-07-01');
 		const values = [3599.2, ...Array.from({ length: 500 }, () => [3599.1, 3599.3]).flat()];
 		for (let part = 0; part < 11; part++) {

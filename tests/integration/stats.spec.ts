@@ -317,7 +317,7 @@ describe('rates', () => {
 		const w = wilson(3, 4);
 		expect(r.bySide.intake.ci95).toEqual({ low: w.low, high: w.high });
 		// [[3, 1], [1, 3]]: two-sided Fisher p = 0.4857 (R fisher.test help, Agresti 1990 p. 61;
-		// REFERENCES.md B3).
+		// docs/REFERENCES.md B3).
 		expect(r.sideDifference?.test).toBe('fisher');
 		expect(r.sideDifference?.p).toBeCloseTo(0.485714, 6);
 		expect(r.sideDifference?.difference).toBe(0.5);

@@ -1,6 +1,12 @@
 // JSON fetched from the browser whenever its URL changes (a page's filters live in its URL):
-// the last answer stays shown while the next one loads, a stale answer is dropped, and an
-// error keeps the server's message. Call it while a component initialises.
+// the last answer stays shown while the next one loads, a stale request is aborted and its
+// answer dropped, and an error keeps the server's message. Call it while a component
+// initialises.
+//
+// The request is a derived promise: it follows `url()` (and a retry) by itself, with no effect
+// copying state around; only its settling writes the answer shown.
+import { onDestroy } from 'svelte';
+import { browser } from '$app/environment';
 import { getJson } from './client';
 
 export interface Resource<T> {
@@ -10,46 +16,57 @@ export interface Resource<T> {
 	retry(): void;
 }
 
+interface Request<T> {
+	promise: Promise<T>;
+	abort: () => void;
+}
+
+interface Answer<T> {
+	request: Request<T>;
+	data: T | null;
+	error: string | null;
+}
+
 export function resource<T>(url: () => string | null): Resource<T> {
-	let data = $state<T | null>(null);
-	let error = $state<string | null>(null);
-	let loading = $state(true);
 	let attempt = $state(0);
-	$effect(() => {
+	let answer = $state.raw<Answer<T> | null>(null);
+	let previous: Request<T> | null = null;
+
+	const request = $derived.by<Request<T> | null>(() => {
 		void attempt;
 		const u = url();
-		if (u === null) {
-			loading = false;
-			data = null;
-			return;
-		}
+		previous?.abort();
+		previous = null;
+		// Never on the server: the page renders its loading state and the browser asks.
+		if (u === null || !browser) return null;
 		const ctl = new AbortController();
-		loading = true;
-		error = null;
-		getJson<T>(u, (input, init) => fetch(input, { ...init, signal: ctl.signal })).then(
-			(d) => {
-				if (ctl.signal.aborted) return;
-				data = d;
-				loading = false;
+		const req: Request<T> = {
+			promise: getJson<T>(u, (input, init) => fetch(input, { ...init, signal: ctl.signal })),
+			abort: () => ctl.abort()
+		};
+		req.promise.then(
+			(data) => {
+				if (!ctl.signal.aborted) answer = { request: req, data, error: null };
 			},
 			(e: unknown) => {
-				if (ctl.signal.aborted) return;
-				error = e instanceof Error ? e.message : String(e);
-				data = null;
-				loading = false;
+				if (!ctl.signal.aborted) answer = { request: req, data: null, error: e instanceof Error ? e.message : String(e) };
 			}
 		);
-		return () => ctl.abort();
+		previous = req;
+		return req;
 	});
+	onDestroy(() => previous?.abort());
+
 	return {
 		get data() {
-			return data;
+			// No URL, no data; otherwise the last answer, kept while the next one loads.
+			return request === null && browser ? null : (answer?.data ?? null);
 		},
 		get error() {
-			return error;
+			return request !== null && answer?.request === request ? answer.error : null;
 		},
 		get loading() {
-			return loading;
+			return browser ? request !== null && answer?.request !== request : true;
 		},
 		retry: () => attempt++
 	};

@@ -2,6 +2,8 @@
 // cell shows it (a formatter or a snippet). DataTable turns them into @tanstack/table-core
 // column definitions.
 import type { Snippet } from 'svelte';
+import { isoDay } from '$lib/domain/days';
+import { MISSING } from '$lib/format';
 
 export type CellValue = string | number | boolean | Date | null | undefined;
 
@@ -25,8 +27,8 @@ export interface DataColumn<T> {
 
 /** The text of a value when a column has no formatter. */
 export function plain(value: CellValue): string {
-	if (value === null || value === undefined || value === '') return '—';
-	if (value instanceof Date) return value.toISOString().slice(0, 10);
+	if (value === null || value === undefined || value === '') return MISSING;
+	if (value instanceof Date) return isoDay(value);
 	if (typeof value === 'number') return value.toLocaleString('en-US', { maximumFractionDigits: 6 });
 	if (typeof value === 'boolean') return value ? 'yes' : 'no';
 	return value;

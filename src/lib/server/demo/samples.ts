@@ -6,6 +6,7 @@ import { mkdir, writeFile } from 'node:fs/promises';
 import { join } from 'node:path';
 import { Rng, SHOP_TEMPLATES, STEM_OFFSET } from './generate';
 import type { Side, Stage } from '../../measurements';
+import { DAY_MS, dayNumber } from '../../domain/days';
 
 export interface SampleFile {
 	name: string;
@@ -19,8 +20,7 @@ const FAMILIES = new Map(SHOP.families.map((f) => [f.code, f]));
 const MACHINISTS = [SHOP.users.machinist, ...SHOP.machinists];
 // Gauge serials as the seed writes them for this shop.
 const BORE_GAUGE = `${SHOP.serialPrefix}-BOR-01`;
-const DAY_MS = 86_400_000;
-const BASE_DAY = Date.parse('2026-11-16T00:00:00Z') / DAY_MS;
+const BASE_DAY = dayNumber('2026-11-16');
 
 interface SampleHead {
 	serial: string;

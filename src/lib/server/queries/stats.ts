@@ -11,6 +11,7 @@
 // Every query filters readings on series_key rather than on measurement/stage/side: row-level
 // security lets an index use only leakproof comparisons, and enum equality is not leakproof.
 import { sql, type SQL } from 'drizzle-orm';
+import { addDays } from '../../domain/days';
 import type { Side } from '../../measurements';
 import type { Conn } from '../db/scope';
 import { expandCounts, mergeMoments, momentsOf, type Moments, type ValueCount } from '../stats';
@@ -78,11 +79,7 @@ export function pgArray(values: readonly (string | number)[]): string {
 	return `{${values.join(',')}}`;
 }
 
-const DAY_MS = 86_400_000;
-/** 'YYYY-MM-DD' + n days. */
-export function addDays(day: string, n: number): string {
-	return new Date(Date.parse(`${day}T00:00:00Z`) + n * DAY_MS).toISOString().slice(0, 10);
-}
+export { addDays };
 function monthStart(day: string): string {
 	return `${day.slice(0, 7)}-01`;
 }

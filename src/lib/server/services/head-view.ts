@@ -2,6 +2,7 @@
 // (limits of their day, seal pass marks, gauge calibration, and optionally the fleet), the guide
 // bore geometry, the suggested and recorded decisions, and what still stops its release.
 // The head page, the grid, the decisions page, the report, the release and the e-mail all read it.
+import { today } from '$lib/domain/days';
 import { STAGES, type BoreDirection, type BoreHeight, type Measurement, type Side, type Stage } from '$lib/measurements';
 import {
 	boreGeometry,
@@ -70,9 +71,7 @@ export interface ReleaseBlocker {
 
 export type HeadView = NonNullable<Awaited<ReturnType<typeof loadHeadView>>>;
 
-export function today(): string {
-	return new Date().toISOString().slice(0, 10);
-}
+export { today };
 
 /** The judged view of one head of the shop, for the pages; a 404 refusal when there is none. */
 export function headView(shopId: string, headId: string, opts: { fleet?: Stage } = {}): Promise<HeadView> {

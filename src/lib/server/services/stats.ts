@@ -78,10 +78,7 @@ import {
 } from '../stats';
 import { CAUTION, suggestDecision } from './decision-rules';
 
-/** Today in UTC, 'YYYY-MM-DD'. */
-function today(): string {
-	return new Date().toISOString().slice(0, 10);
-}
+import { today } from '$lib/domain/days';
 
 /** The filters a response was computed for (absent ones left out). */
 function echo(q: Partial<StatsFilters>): EchoFilters {

@@ -12,19 +12,19 @@ import {
 
 group('capabilityIndices', () => {
 	it('NIST e-Handbook §6.1.6 example: USL 20, LSL 8, x̄ 16, s 2 → Cp 1, Cpu 0.6667, Cpl 1.3333, Cpk 0.6667', () => {
-		// NIST/SEMATECH e-Handbook §6.1.6 worked example [M] (REFERENCES.md B4: page text not in the
+		// NIST/SEMATECH e-Handbook §6.1.6 worked example [M] (docs/REFERENCES.md B4: page text not in the
 		// stored corpora, so the example is from memory; the arithmetic is [C], formulas [S] SAS/QC docs)
 		const r = capabilityIndices(16, 2, { lsl: 8, usl: 20 });
 		expect(r.cp).toBeCloseTo(1, 14);
 		expect(r.cpu as number).toBeCloseTo(4 / 6, 14);
 		expect(r.cpl as number).toBeCloseTo(8 / 6, 14);
 		expect(r.cpk as number).toBeCloseTo(0.6667, 4);
-		// REFERENCES.md B4: k = |m − x̄|/((USL − LSL)/2) = 1/3 with m = 14, and Cpk = Cp(1 − k) [C]
+		// docs/REFERENCES.md B4: k = |m − x̄|/((USL − LSL)/2) = 1/3 with m = 14, and Cpk = Cp(1 − k) [C]
 		const k = Math.abs(14 - 16) / ((20 - 8) / 2);
 		expect(r.cpk as number).toBeCloseTo((r.cp as number) * (1 - k), 14);
 	});
 	it('one-sided limits: Cp null, Cpk is the applicable side', () => {
-		// SAS/QC capability docs (REFERENCES.md B4 [S]): Cpk = min of the available one-sided indices
+		// SAS/QC capability docs (docs/REFERENCES.md B4 [S]): Cpk = min of the available one-sided indices
 		expect(capabilityIndices(16, 2, { usl: 20 })).toEqual({ cp: null, cpu: 4 / 6, cpl: null, cpk: 4 / 6 });
 		expect(capabilityIndices(16, 2, { lsl: 8 })).toEqual({ cp: null, cpu: null, cpl: 8 / 6, cpk: 8 / 6 });
 		expect(capabilityIndices(16, 2, {})).toEqual({ cp: null, cpu: null, cpl: null, cpk: null });
@@ -39,7 +39,7 @@ group('capabilityIndices', () => {
 
 group('capabilityVerdict (SAS/QC documentation guidance)', () => {
 	it('< 1 not capable, 1 to < 1.33 marginal, ≥ 1.33 capable', () => {
-		// SAS/QC doc guidance, REFERENCES.md B4 [S]: Cp < 1 not adequate (Ekvall & Juran); ≥ 1.33 (Montgomery)
+		// SAS/QC doc guidance, docs/REFERENCES.md B4 [S]: Cp < 1 not adequate (Ekvall & Juran); ≥ 1.33 (Montgomery)
 		expect(capabilityVerdict(0.99).level).toBe('not_capable');
 		expect(capabilityVerdict(1).level).toBe('marginal');
 		expect(capabilityVerdict(1.329).level).toBe('marginal');
@@ -52,7 +52,7 @@ group('capabilityVerdict (SAS/QC documentation guidance)', () => {
 group('capability (within σ = MR̄/1.128, overall σ = s)', () => {
 	it('alternating 10, 11, … (n = 10), limits 7…14: within and overall σ differ as they should', () => {
 		// Hand computation [C]: x̄ = 10.5, MR̄ = 1, σ_within = 1/1.128, s = √(2.5/9);
-		// d2 = 1.128 from REFERENCES.md B5; Cp = 7/(6σ), Cpk = min(14 − 10.5, 10.5 − 7)/(3σ)
+		// d2 = 1.128 from docs/REFERENCES.md B5; Cp = 7/(6σ), Cpk = min(14 − 10.5, 10.5 − 7)/(3σ)
 		const xs = [10, 11, 10, 11, 10, 11, 10, 11, 10, 11];
 		const r = capability(xs, { lsl: 7, usl: 14 });
 		const sw = 1 / 1.128;
@@ -68,7 +68,7 @@ group('capability (within σ = MR̄/1.128, overall σ = s)', () => {
 		expect(r.verdict.level).toBe('marginal'); // Cpk 1.316
 	});
 	it('upper limit only: Cp and Pp null, Cpk = Cpu', () => {
-		// SAS/QC docs (REFERENCES.md B4 [S]); same data as above [C]
+		// SAS/QC docs (docs/REFERENCES.md B4 [S]); same data as above [C]
 		const r = capability([10, 11, 10, 11, 10, 11, 10, 11, 10, 11], { usl: 14 });
 		expect(r.cp).toBeNull();
 		expect(r.pp).toBeNull();
@@ -88,8 +88,8 @@ group('capability (within σ = MR̄/1.128, overall σ = s)', () => {
 	});
 });
 
-group('Shewhart constants (REFERENCES.md B5)', () => {
-	// d2, d3 to 4 decimals: REFERENCES.md B5 [C], equal to the R SixSigma vignette [S].
+group('Shewhart constants (docs/REFERENCES.md B5)', () => {
+	// d2, d3 to 4 decimals: docs/REFERENCES.md B5 [C], equal to the R SixSigma vignette [S].
 	const d2d3: Record<number, [number, number]> = {
 		2: [1.1284, 0.8525],
 		3: [1.6926, 0.8884],
@@ -103,7 +103,7 @@ group('Shewhart constants (REFERENCES.md B5)', () => {
 	};
 	it('A2 = 3/(d2√n), D3 = max(0, 1 − 3d3/d2), D4 = 1 + 3d3/d2 reproduce the printed table to 1e-3', () => {
 		// Formulas: SAS/QC "Deriving Control Chart Constants" [S]; tolerance 1e-3 because printed tables
-		// round from rounded d2/d3 (REFERENCES.md B5 note on D4, n = 3)
+		// round from rounded d2/d3 (docs/REFERENCES.md B5 note on D4, n = 3)
 		for (const [key, c] of Object.entries(CONTROL_CHART_CONSTANTS)) {
 			const n = Number(key);
 			const [d2, d3] = d2d3[n];
@@ -115,7 +115,7 @@ group('Shewhart constants (REFERENCES.md B5)', () => {
 		expect(Object.keys(CONTROL_CHART_CONSTANTS).map(Number)).toEqual([2, 3, 4, 5, 6, 7, 8, 9, 10]);
 	});
 	it('individuals chart: E2 = 3/d2 = 2.66 and MR-chart D4 = 3.267 for span 2', () => {
-		// REFERENCES.md B5: E2 = 3/d2 = 2.6587 exact, printed 2.66 (2 decimals, so tolerance 5e-3);
+		// docs/REFERENCES.md B5: E2 = 3/d2 = 2.6587 exact, printed 2.66 (2 decimals, so tolerance 5e-3);
 		// vendor "Control Chart Line Constants" table row "1 | 2.660 | … | 3.267" [S]
 		expect(Math.abs(E2_MR - 3 / 1.1284)).toBeLessThanOrEqual(5e-3);
 		expect(D4_MR).toBe(3.267);
@@ -125,7 +125,7 @@ group('Shewhart constants (REFERENCES.md B5)', () => {
 group('controlChart (individuals / moving range)', () => {
 	// Hand computation [C]: readings 10, 11, 10, 11, 10, 11, 10, 11, 10, 20 at t = 1…10.
 	// MR = 1 (×8) and 10 → MR̄ = 18/9 = 2; x̄ = 114/10 = 11.4; UCL = 11.4 + 2.66·2 = 16.72,
-	// LCL = 6.08; MR UCL = 3.267·2 = 6.534 (constants from REFERENCES.md B5).
+	// LCL = 6.08; MR UCL = 3.267·2 = 6.534 (constants from docs/REFERENCES.md B5).
 	const values = [10, 11, 10, 11, 10, 11, 10, 11, 10, 20];
 	const points = values.map((value, i) => ({ t: i + 1, value }));
 
@@ -161,7 +161,7 @@ group('controlChart (individuals / moving range)', () => {
 		expect(controlChart([]).centre).toBeNull();
 	});
 	it('averageMovingRange: mean |x_i − x_{i−1}|', () => {
-		// Definition (REFERENCES.md B4: σ̂ = MR̄/1.128 for individuals)
+		// Definition (docs/REFERENCES.md B4: σ̂ = MR̄/1.128 for individuals)
 		expect(averageMovingRange([1, 4, 2, 2])).toBeCloseTo(5 / 3, 14);
 		expect(averageMovingRange([1])).toBeNull();
 	});

@@ -13,7 +13,7 @@ import { finiteArray, type Values } from './input';
  * Source: the standard table of ASTM E2587, Montgomery "Introduction to Statistical Quality
  * Control" Appendix VI and NIST e-Handbook §6.3.2, as read in a SCADA vendor's
  * "Control Chart Line Constants" documentation page and the R SixSigma vignette "Shewhart Constants for
- * Control Charts" (REFERENCES.md B5). A2 = 3/(d2√n), D3 = max(0, 1 − 3d3/d2), D4 = 1 + 3d3/d2.
+ * Control Charts" (docs/REFERENCES.md B5). A2 = 3/(d2√n), D3 = max(0, 1 − 3d3/d2), D4 = 1 + 3d3/d2.
  */
 export const CONTROL_CHART_CONSTANTS: Readonly<
 	Record<2 | 3 | 4 | 5 | 6 | 7 | 8 | 9 | 10, { A2: number; D3: number; D4: number; d2: number }>

@@ -25,9 +25,9 @@ group('expandCounts', () => {
 });
 
 group('summarizeCounts equals describe() on the raw readings', () => {
-	// The type-7 quartiles of 1…10 (Hyndman & Fan 1996; R quantile(type = 7)): REFERENCES.md B8,
+	// The type-7 quartiles of 1…10 (Hyndman & Fan 1996; R quantile(type = 7)): docs/REFERENCES.md B8,
 	// values [C] 1.9 / 3.25 / 5.5 / 7.75 / 9.1 for p = 0.10 / 0.25 / 0.50 / 0.75 / 0.90.
-	it('1…10: quartiles 3.25 / 5.5 / 7.75 (REFERENCES.md B8), MAD 2.5 by hand', () => {
+	it('1…10: quartiles 3.25 / 5.5 / 7.75 (docs/REFERENCES.md B8), MAD 2.5 by hand', () => {
 		const s = summarizeCounts(table([1, 2, 3, 4, 5, 6, 7, 8, 9, 10]));
 		expect(s.quantiles.p25).toBe(3.25);
 		expect(s.quantiles.p50).toBe(5.5);
@@ -85,8 +85,8 @@ group('summarizeCounts equals describe() on the raw readings', () => {
 });
 
 group('robustOfSorted', () => {
-	it('median, MAD and fences agree with summarizeSorted (Grubbs data, REFERENCES.md B7: median 201.37, MAD 0.995)', () => {
-		// NIST e-Handbook §1.3.5.17 Grubbs example data as listed in REFERENCES.md B6; median, MAD
+	it('median, MAD and fences agree with summarizeSorted (Grubbs data, docs/REFERENCES.md B7: median 201.37, MAD 0.995)', () => {
+		// NIST e-Handbook §1.3.5.17 Grubbs example data as listed in docs/REFERENCES.md B6; median, MAD
 		// and type-7 fences 197.051 / 204.981 there are [C] (recomputed).
 		const x = [199.31, 199.53, 200.19, 200.82, 201.92, 201.95, 202.18, 245.57];
 		const r = robustOfSorted(x);

@@ -15,7 +15,7 @@ import {
 
 group('wilson (Wilson 1927 score interval)', () => {
 	// Newcombe, R. G. (1998) Stat Med 17:857–872, Table I, method 3, 95 %, z = 1.959964.
-	// 81/263 and 15/148: REFERENCES.md B2 [S][C]. 0/20 and 1/29: not listed in REFERENCES.md;
+	// 81/263 and 15/148: docs/REFERENCES.md B2 [S][C]. 0/20 and 1/29: not listed in docs/REFERENCES.md;
 	// the same Table I values appear in several stored test files citing Newcombe [S], and were
 	// recomputed here from the Wilson formula [C] (0/20 → 0, 0.161125; 1/29 → 0.006113, 0.171755).
 	const table1: Array<[number, number, number, number]> = [
@@ -33,14 +33,14 @@ group('wilson (Wilson 1927 score interval)', () => {
 		});
 	}
 	it('81/263 to full precision with z = Φ⁻¹(0.975) → (0.255288519878274, 0.366209576982800)', () => {
-		// REFERENCES.md B2, full-precision Wilson result [C]; z from @stdlib normal quantile
+		// docs/REFERENCES.md B2, full-precision Wilson result [C]; z from @stdlib normal quantile
 		const z = normalQuantile(0.975, 0, 1);
 		const w = wilson(81, 263, z);
 		expect(w.low as number).toBeCloseTo(0.255288519878274, 12);
 		expect(w.high as number).toBeCloseTo(0.3662095769828, 12);
 	});
 	it('the default z 1.959964 is Φ⁻¹(0.975) to 6 decimals', () => {
-		// Newcombe 1998 uses z = 1.959964 (REFERENCES.md B2); @stdlib normal quantile as the check
+		// Newcombe 1998 uses z = 1.959964 (docs/REFERENCES.md B2); @stdlib normal quantile as the check
 		expect(Z95).toBeCloseTo(normalQuantile(0.975, 0, 1), 6);
 	});
 	it('n = 0 gives nulls; x = 0 and x = n give exact 0 and 1 bounds; bad counts throw', () => {
@@ -62,7 +62,7 @@ group('wilson (Wilson 1927 score interval)', () => {
 group('newcombeDifference (Newcombe 1998b method 10)', () => {
 	// Newcombe, R. G. (1998) "Interval estimation for the difference between independent proportions:
 	// comparison of eleven methods", Stat Med 17:873–890, Table II, method 10. Values as quoted, with
-	// that citation, in several stored test files [S]; not listed in REFERENCES.md.
+	// that citation, in several stored test files [S]; not listed in docs/REFERENCES.md.
 	const table2: Array<[number, number, number, number, number, number]> = [
 		[56, 70, 48, 80, 0.0524, 0.3339], // Newcombe 1998b Table II (a) [S]
 		[9, 10, 3, 10, 0.1705, 0.809], // Newcombe 1998b Table II (b) [S]
@@ -89,17 +89,17 @@ group('newcombeDifference (Newcombe 1998b method 10)', () => {
 
 group('fisherExact2x2', () => {
 	it("Fisher's tea tasting [[3,1],[1,3]]: two-sided 0.4857, one-sided greater 0.2429", () => {
-		// R fisher.test help page (Agresti 1990 p. 61), REFERENCES.md B3 [S]; SciPy 0.485714…, 0.242857… [C]
+		// R fisher.test help page (Agresti 1990 p. 61), docs/REFERENCES.md B3 [S]; SciPy 0.485714…, 0.242857… [C]
 		const r = fisherExact2x2([
 			[3, 1],
 			[1, 3]
 		]);
 		expect(r.p).toBeCloseTo(0.4857142857142857, 12);
 		expect(r.pGreater).toBeCloseTo(0.2428571428571428, 12);
-		expect(r.oddsRatio).toBe(9); // sample OR = 9 (REFERENCES.md B3)
+		expect(r.oddsRatio).toBe(9); // sample OR = 9 (docs/REFERENCES.md B3)
 	});
 	it('SciPy example [[6,2],[1,4]]: two-sided p = 4/39', () => {
-		// REFERENCES.md B3 [C]: 0.102564… = 4/39
+		// docs/REFERENCES.md B3 [C]: 0.102564… = 4/39
 		expect(
 			fisherExact2x2([
 				[6, 2],
@@ -108,7 +108,7 @@ group('fisherExact2x2', () => {
 		).toBeCloseTo(4 / 39, 13);
 	});
 	it('R Convictions data [[2,15],[10,3]]: two-sided 0.0005367 (not 2× one-sided 0.000930); less 0.0004652', () => {
-		// R fisher.test help "Convictions" example, REFERENCES.md B3; SciPy 0.000536724…, 0.000465181… [C]
+		// R fisher.test help "Convictions" example, docs/REFERENCES.md B3; SciPy 0.000536724…, 0.000465181… [C]
 		const r = fisherExact2x2([
 			[2, 15],
 			[10, 3]
@@ -170,7 +170,7 @@ group('fisherExact2x2', () => {
 
 group('chi-square (Pearson, no continuity correction)', () => {
 	it('tea table [[3,1],[1,3]]: X² = 2.0, df 1, p = 0.1573 (uncorrected)', () => {
-		// REFERENCES.md B3 [C]: uncorrected X² = 2.0 (p = 0.1573); Yates would give 0.5
+		// docs/REFERENCES.md B3 [C]: uncorrected X² = 2.0 (p = 0.1573); Yates would give 0.5
 		const r = chiSquare2x2([
 			[3, 1],
 			[1, 3]
@@ -184,7 +184,7 @@ group('chi-square (Pearson, no continuity correction)', () => {
 		]);
 	});
 	it('SciPy doc example [[10,10,20],[20,20,20]]: X² = 2.7778, df 2, p = 0.24935', () => {
-		// REFERENCES.md B3 [C]
+		// docs/REFERENCES.md B3 [C]
 		const r = chiSquareTest([
 			[10, 10, 20],
 			[20, 20, 20]

@@ -9,21 +9,10 @@ import { quantileRankSorted } from 'simple-statistics';
 import { fixedApart } from '../../measurements';
 import type { Fences } from './summary';
 import type { Values } from './input';
+import { MODIFIED_Z_THRESHOLD, modifiedZ } from '../../domain/robust';
 
-/** Φ⁻¹(3/4) to four places, the factor in Iglewicz & Hoaglin's modified z-score. */
-export const MODIFIED_Z_FACTOR = 0.6745;
-/** |M| above this is a potential outlier (Iglewicz & Hoaglin 1993). */
-export const MODIFIED_Z_THRESHOLD = 3.5;
-
-/**
- * Modified z-score 0.6745·(x − median)/MAD with the raw (unscaled) MAD.
- * Null when MAD is 0 or missing: more than half the fleet has the same value, and
- * the score is undefined.
- */
-export function modifiedZ(x: number, median: number | null, mad: number | null): number | null {
-	if (median === null || mad === null || !(mad > 0)) return null;
-	return (MODIFIED_Z_FACTOR * (x - median)) / mad;
-}
+// The modified z-score is shared with the browser's entry grid ($lib/domain/robust).
+export { MODIFIED_Z_FACTOR, MODIFIED_Z_THRESHOLD, modifiedZ } from '../../domain/robust';
 
 /** 'low' below Q1 − 1.5·IQR, 'high' above Q3 + 1.5·IQR, otherwise null. Fences are exclusive. */
 export function tukeyFlag(x: number, fences: Fences): 'low' | 'high' | null {

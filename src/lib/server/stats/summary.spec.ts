@@ -23,8 +23,8 @@ function relErr(actual: number | null, expected: number): number {
 group('describe() against NIST StRD univariate certified values', () => {
 	// Certified values: NIST ITL StRD univariate summary statistics
 	// (https://www.itl.nist.gov/div898/strd/univ/), as reproduced in GNU GSL statistics/test_nist.c
-	// (GitHub ampl/gsl) and R package Rqualification; see REFERENCES.md B1 and each fixture header.
-	// Tolerances: GSL's own gsl_test_rel tolerances from the same test_nist.c (REFERENCES.md B1).
+	// (GitHub ampl/gsl) and R package Rqualification; see docs/REFERENCES.md B1 and each fixture header.
+	// Tolerances: GSL's own gsl_test_rel tolerances from the same test_nist.c (docs/REFERENCES.md B1).
 	const cases: Array<{
 		name: string;
 		n: number;
@@ -60,7 +60,7 @@ group('describe() against NIST StRD univariate certified values', () => {
 		// NIST StRD NumAcc4, certified mean 10000000.2, sd 0.1, r(1) −0.999 (exact), as stated in
 		// GNU GSL statistics/test_nist.c (GitHub ampl/gsl); GSL tolerances 1e-15 / 1e-7 / 1e-10.
 		// No NumAcc4 fixture file exists in the shared reference set, so the data are built here
-		// by the construction REFERENCES.md B1 describes.
+		// by the construction docs/REFERENCES.md B1 describes.
 		const v = [10000000.2];
 		for (let i = 0; i < 500; i++) v.push(10000000.1, 10000000.3);
 		const s = describe(v);
@@ -71,8 +71,8 @@ group('describe() against NIST StRD univariate certified values', () => {
 	});
 
 	it('streaming Welford (addValue) also meets the GSL NumAcc3 tolerance', () => {
-		// NIST StRD NumAcc3, certified sd 0.1; GSL tolerance 1e-9 (REFERENCES.md B1).
-		// The naive Σx² − n·x̄² form reaches only LRE 2.2 here (REFERENCES.md B1 [C]).
+		// NIST StRD NumAcc3, certified sd 0.1; GSL tolerance 1e-9 (docs/REFERENCES.md B1).
+		// The naive Σx² − n·x̄² form reaches only LRE 2.2 here (docs/REFERENCES.md B1 [C]).
 		const m = readStrdValues('NumAcc3').reduce<Moments>(addValue, emptyMoments());
 		const s = momentsToSummary(m);
 		expect(relErr(s.mean, 1000000.2)).toBeLessThanOrEqual(1e-15);
@@ -80,7 +80,7 @@ group('describe() against NIST StRD univariate certified values', () => {
 	});
 
 	it('accepts a Float64Array', () => {
-		// NIST StRD Michelso, certified mean 299.852400000000 (REFERENCES.md B1)
+		// NIST StRD Michelso, certified mean 299.852400000000 (docs/REFERENCES.md B1)
 		const s = describe(Float64Array.from(readStrdValues('Michelso')));
 		expect(relErr(s.mean, 299.8524)).toBeLessThanOrEqual(1e-15);
 	});
@@ -90,19 +90,19 @@ group('quantileType7 (Hyndman & Fan 1996 type 7)', () => {
 	const q = (xs: number[], p: number) => quantileType7([...xs].sort((a, b) => a - b), p);
 
 	it('Excel PERCENTILE.INC help example: {1,3,2,4}, k = 0.3 → 1.9', () => {
-		// Excel PERCENTILE.INC support-page example (REFERENCES.md B8 [S])
+		// Excel PERCENTILE.INC support-page example (docs/REFERENCES.md B8 [S])
 		expect(q([1, 3, 2, 4], 0.3)).toBeCloseTo(1.9, 12);
 	});
 	it('PERCENTILE.INC example: {5,15,25,50,65}, k = 0.45 → 23', () => {
-		// a spreadsheet-component vendor's PERCENTILE.INC page (REFERENCES.md B8 [S])
+		// a spreadsheet-component vendor's PERCENTILE.INC page (docs/REFERENCES.md B8 [S])
 		expect(q([5, 15, 25, 50, 65], 0.45)).toBeCloseTo(23, 12);
 	});
 	it('1…9 at p = 0.25 → 3 (type 6 would give 2.5)', () => {
-		// REFERENCES.md B8 worked example [C]
+		// docs/REFERENCES.md B8 worked example [C]
 		expect(q([1, 2, 3, 4, 5, 6, 7, 8, 9], 0.25)).toBe(3);
 	});
 	it('1…10 at p = 0.10/0.25/0.50/0.75/0.90 → 1.9/3.25/5.5/7.75/9.1', () => {
-		// REFERENCES.md B8 worked example [C] (R quantile(1:10, type = 7))
+		// docs/REFERENCES.md B8 worked example [C] (R quantile(1:10, type = 7))
 		const xs = [1, 2, 3, 4, 5, 6, 7, 8, 9, 10];
 		const expected: Array<[number, number]> = [
 			[0.1, 1.9],
@@ -114,7 +114,7 @@ group('quantileType7 (Hyndman & Fan 1996 type 7)', () => {
 		for (const [p, v] of expected) expect(q(xs, p)).toBeCloseTo(v, 12);
 	});
 	it('NIST §7.2.6.2 twelve measurements at p = 0.90 → 95.19568 (type 7; NIST’s type 6 gives 95.1981)', () => {
-		// REFERENCES.md B8: data from NIST e-Handbook §7.2.6.2 [M]; type-7 arithmetic [C]
+		// docs/REFERENCES.md B8: data from NIST e-Handbook §7.2.6.2 [M]; type-7 arithmetic [C]
 		const xs = [
 			95.1772, 95.1567, 95.1937, 95.1959, 95.1442, 95.061, 95.1591, 95.1195, 95.1772, 95.0925,
 			95.199, 95.1682
@@ -122,7 +122,7 @@ group('quantileType7 (Hyndman & Fan 1996 type 7)', () => {
 		expect(q(xs, 0.9)).toBeCloseTo(95.19568, 10);
 	});
 	it('p = 0 and p = 1 give min and max; empty gives null; p outside [0,1] throws', () => {
-		// Definition of type 7 (REFERENCES.md B8: p_k = (k − 1)/(n − 1))
+		// Definition of type 7 (docs/REFERENCES.md B8: p_k = (k − 1)/(n − 1))
 		expect(q([3, 1, 2], 0)).toBe(1);
 		expect(q([3, 1, 2], 1)).toBe(3);
 		expect(quantileType7([], 0.5)).toBeNull();
@@ -130,7 +130,7 @@ group('quantileType7 (Hyndman & Fan 1996 type 7)', () => {
 		expect(() => quantileType7([1], Number.NaN)).toThrow(RangeError);
 	});
 	it('hits the order statistic x_(k) exactly at p = (k − 1)/(n − 1), and is monotone in p', () => {
-		// Definition of type 7: plotting position p_k = (k − 1)/(n − 1) (REFERENCES.md B8, H&F 1996)
+		// Definition of type 7: plotting position p_k = (k − 1)/(n − 1) (docs/REFERENCES.md B8, H&F 1996)
 		fc.assert(
 			fc.property(
 				fc.array(fc.double({ min: -1e6, max: 1e6, noNaN: true }), { minLength: 2, maxLength: 40 }),
@@ -154,25 +154,25 @@ group('quantileType7 (Hyndman & Fan 1996 type 7)', () => {
 
 group('describe(): robust spread, fences and edge cases', () => {
 	it('R mad(1:9): raw MAD 2, scaled 2.9652', () => {
-		// R help for mad() (REFERENCES.md B7 [S]): mad(c(1:9)) = 1.4826 × 2
+		// R help for mad() (docs/REFERENCES.md B7 [S]): mad(c(1:9)) = 1.4826 × 2
 		const s = describe([1, 2, 3, 4, 5, 6, 7, 8, 9]);
 		expect(s.mad).toBe(2);
 		expect(s.madScaled).toBeCloseTo(2.9652, 12);
 	});
 	it('R: mad(c(1:8, 100), constant = 1) equals mad(1:9, constant = 1) = 2', () => {
-		// R help for mad() (REFERENCES.md B7 [S])
+		// R help for mad() (docs/REFERENCES.md B7 [S])
 		expect(describe([1, 2, 3, 4, 5, 6, 7, 8, 100]).mad).toBe(2);
 	});
 	it('(1,1,2,2,4,6,9): median 2, MAD 1', () => {
-		// Wikipedia's MAD example, via blog.csdn.net translation (REFERENCES.md B7 [S])
+		// Wikipedia's MAD example, via blog.csdn.net translation (docs/REFERENCES.md B7 [S])
 		const s = describe([1, 1, 2, 2, 4, 6, 9]);
 		expect(s.quantiles.p50).toBe(2);
 		expect(s.mad).toBe(1);
 		expect(s.madScaled).toBeCloseTo(1.4826, 12);
 	});
 	it('Grubbs uranium data: median 201.37, MAD 0.995, quartiles 200.025/202.0075, fences 197.051/204.981', () => {
-		// Data: NIST e-Handbook §1.3.5.17 via heike/outlierTests (REFERENCES.md B6 [S]);
-		// median, MAD, type-7 quartiles and fences: REFERENCES.md B7 [C]
+		// Data: NIST e-Handbook §1.3.5.17 via heike/outlierTests (docs/REFERENCES.md B6 [S]);
+		// median, MAD, type-7 quartiles and fences: docs/REFERENCES.md B7 [C]
 		const s = describe([199.31, 199.53, 200.19, 200.82, 201.92, 201.95, 202.18, 245.57]);
 		expect(s.quantiles.p50).toBeCloseTo(201.37, 10);
 		expect(s.mad).toBeCloseTo(0.995, 10);
@@ -180,7 +180,7 @@ group('describe(): robust spread, fences and edge cases', () => {
 		expect(s.quantiles.p75).toBeCloseTo(202.0075, 10);
 		expect(s.fences.low).toBeCloseTo(197.05125, 10);
 		expect(s.fences.high).toBeCloseTo(204.98125, 10);
-		// REFERENCES.md B6: x̄ = 206.43375, s = 15.85256
+		// docs/REFERENCES.md B6: x̄ = 206.43375, s = 15.85256
 		expect(s.mean).toBeCloseTo(206.43375, 10);
 		expect(s.sd).toBeCloseTo(15.85256, 5);
 	});
@@ -216,7 +216,7 @@ group('describe(): robust spread, fences and edge cases', () => {
 		expect(s.histogram).toEqual([{ x0: 7.5, x1: 7.5, count: 1 }]);
 	});
 	it('all equal: sd 0, MAD 0, fences collapse, one bin, r(1) null (0/0)', () => {
-		// Definitions: NIST r(1) has Σ(y − ȳ)² = 0 in its denominator (REFERENCES.md B1)
+		// Definitions: NIST r(1) has Σ(y − ȳ)² = 0 in its denominator (docs/REFERENCES.md B1)
 		const s = describe([3.2, 3.2, 3.2, 3.2]);
 		expect(s.sd).toBe(0);
 		expect(s.mad).toBe(0);
@@ -242,7 +242,7 @@ group('describe(): robust spread, fences and edge cases', () => {
 
 group('lag1Autocorrelation (NIST StRD definition)', () => {
 	it('1,2,3,4: Σ(y_i − ȳ)(y_{i−1} − ȳ) / Σ(y_i − ȳ)² = 1.25/5 = 0.25', () => {
-		// REFERENCES.md B1 definition; arithmetic by hand [C]: deviations −1.5, −0.5, 0.5, 1.5
+		// docs/REFERENCES.md B1 definition; arithmetic by hand [C]: deviations −1.5, −0.5, 0.5, 1.5
 		expect(lag1Autocorrelation([1, 2, 3, 4])).toBeCloseTo(0.25, 15);
 	});
 });

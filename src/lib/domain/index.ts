@@ -1,0 +1,4 @@
+// The trade's small pure rules that the browser and the server both apply. Imports nothing
+// outside this folder, so a component and a server statistic can share them.
+export * from './days';
+export * from './robust';
