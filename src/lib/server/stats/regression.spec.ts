@@ -12,7 +12,7 @@ function relErr(actual: number | null, expected: number): number {
 
 group('linearFit against NIST StRD Norris', () => {
 	// NIST StRD linear regression dataset Norris (36 observations, lower difficulty).
-	// Certified values: the product brief gave B0, B1, residual SD and R² from memory of the NIST Norris
+	// Certified values: B0, B1, residual SD and R² were first written down from memory of the NIST Norris
 	// page [M]; all of them, plus the standard errors, were then also read [S] in two stored copies:
 	// GNU GSL fit/test.c (GitHub BrianGladman/gsl: B0, B1, SEs, residual SS) and the test-library
 	// model LS01 of an optimisation-modelling system (Kalvelagen & Dirkse 2008; all values). Data: tests/fixtures/strd/Norris.csv (header names the sources).
