@@ -12,14 +12,21 @@ import { check, date, doublePrecision, integer, pgTable, primaryKey, smallint, u
 // cascaded delete (a shop, a head) the triggers rewrite them while the parent rows are already
 // gone, which a foreign key would refuse.
 
+/** The key every summary starts with: shop × series × family (a month or a value follows). */
+function summaryGroup() {
+	return {
+		shopId: uuid().notNull(),
+		/** measurement × stage × side, as readings.series_key. */
+		seriesKey: smallint().notNull(),
+		familyId: uuid().notNull()
+	};
+}
+
 /** Count, mean and M2 = Σ(x − mean)² per group-month (Chan, Golub & LeVeque merge on insert). */
 export const readingSummaries = pgTable(
 	'reading_summaries',
 	{
-		shopId: uuid().notNull(),
-		/** measurement × stage × side, as readings.series_key. */
-		seriesKey: smallint().notNull(),
-		familyId: uuid().notNull(),
+		...summaryGroup(),
 		/** First day of the month (UTC) the readings were taken in. */
 		month: date().notNull(),
 		n: integer().notNull(),
@@ -44,10 +51,7 @@ export type ReadingSummary = typeof readingSummaries.$inferSelect;
 export const readingValueCounts = pgTable(
 	'reading_value_counts',
 	{
-		shopId: uuid().notNull(),
-		/** measurement × stage × side, as readings.series_key. */
-		seriesKey: smallint().notNull(),
-		familyId: uuid().notNull(),
+		...summaryGroup(),
 		month: date().notNull(),
 		value: doublePrecision().notNull(),
 		n: integer().notNull()
@@ -69,10 +73,7 @@ export type ReadingValueCount = typeof readingValueCounts.$inferSelect;
 export const readingValueTotals = pgTable(
 	'reading_value_totals',
 	{
-		shopId: uuid().notNull(),
-		/** measurement × stage × side, as readings.series_key. */
-		seriesKey: smallint().notNull(),
-		familyId: uuid().notNull(),
+		...summaryGroup(),
 		value: doublePrecision().notNull(),
 		n: integer().notNull()
 	},
