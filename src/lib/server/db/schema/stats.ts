@@ -1,5 +1,5 @@
 import { sql } from 'drizzle-orm';
-import { check, date, doublePrecision, integer, pgTable, primaryKey, smallint, uuid } from 'drizzle-orm/pg-core';
+import { type AnyPgColumn, check, date, doublePrecision, integer, pgTable, primaryKey, smallint, uuid } from 'drizzle-orm/pg-core';
 
 // Per-group summaries of `readings`, kept current by statement-level triggers on readings
 // (drizzle/0004_stats_summaries.sql), so the statistics routes never rescan every reading.
@@ -22,6 +22,11 @@ function summaryGroup() {
 	};
 }
 
+/** The primary key `<table>_pkey`: the group, then the month and/or the value. */
+function summaryKey(table: string, t: { shopId: AnyPgColumn; seriesKey: AnyPgColumn; familyId: AnyPgColumn }, ...rest: AnyPgColumn[]) {
+	return primaryKey({ name: `${table}_pkey`, columns: [t.shopId, t.seriesKey, t.familyId, ...rest] });
+}
+
 /** Count, mean and M2 = Σ(x − mean)² per group-month (Chan, Golub & LeVeque merge on insert). */
 export const readingSummaries = pgTable(
 	'reading_summaries',
@@ -36,7 +41,7 @@ export const readingSummaries = pgTable(
 		max: doublePrecision().notNull()
 	},
 	(t) => [
-		primaryKey({ name: 'reading_summaries_pkey', columns: [t.shopId, t.seriesKey, t.familyId, t.month] }),
+		summaryKey('reading_summaries', t, t.month),
 		check('reading_summaries_n_positive', sql`${t.n} > 0`),
 		check('reading_summaries_m2_non_negative', sql`${t.m2} >= 0`)
 	]
@@ -57,10 +62,7 @@ export const readingValueCounts = pgTable(
 		n: integer().notNull()
 	},
 	(t) => [
-		primaryKey({
-			name: 'reading_value_counts_pkey',
-			columns: [t.shopId, t.seriesKey, t.familyId, t.month, t.value]
-		}),
+		summaryKey('reading_value_counts', t, t.month, t.value),
 		check('reading_value_counts_n_non_negative', sql`${t.n} >= 0`)
 	]
 );
@@ -78,7 +80,7 @@ export const readingValueTotals = pgTable(
 		n: integer().notNull()
 	},
 	(t) => [
-		primaryKey({ name: 'reading_value_totals_pkey', columns: [t.shopId, t.seriesKey, t.familyId, t.value] }),
+		summaryKey('reading_value_totals', t, t.value),
 		check('reading_value_totals_n_positive', sql`${t.n} > 0`)
 	]
 );
