@@ -1,25 +1,23 @@
 import { sql } from 'drizzle-orm';
-import { check, index, pgTable, text, timestamp, uuid } from 'drizzle-orm/pg-core';
-import { users } from './auth';
+import { check, index, pgTable, text } from 'drizzle-orm/pg-core';
+import { createdAt, timestampTz, uuidKey } from './columns';
 import { roleEnum } from './enums';
-import { shops } from './shops';
+import { byUser, shopRef, userRef } from './refs';
 
 /** An owner's invitation to join a shop; the link carries a secret whose hash is kept here. */
 export const invitations = pgTable(
 	'invitations',
 	{
-		id: uuid().primaryKey().defaultRandom(),
-		shopId: uuid()
-			.notNull()
-			.references(() => shops.id, { onDelete: 'cascade' }),
+		id: uuidKey(),
+		shopId: shopRef(),
 		email: text().notNull(),
 		role: roleEnum().notNull(),
 		tokenHash: text().notNull().unique(),
-		invitedBy: text().references(() => users.id, { onDelete: 'set null' }),
-		createdAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
-		expiresAt: timestamp({ withTimezone: true }).notNull(),
-		acceptedAt: timestamp({ withTimezone: true }),
-		revokedAt: timestamp({ withTimezone: true })
+		invitedBy: byUser(),
+		createdAt: createdAt(),
+		expiresAt: timestampTz().notNull(),
+		acceptedAt: timestampTz(),
+		revokedAt: timestampTz()
 	},
 	(t) => [index('invitations_shop_idx').on(t.shopId, t.createdAt)]
 );
@@ -27,14 +25,12 @@ export type Invitation = typeof invitations.$inferSelect;
 
 /** Single-use password reset links. */
 export const passwordResets = pgTable('password_resets', {
-	id: uuid().primaryKey().defaultRandom(),
-	userId: text()
-		.notNull()
-		.references(() => users.id, { onDelete: 'cascade' }),
+	id: uuidKey(),
+	userId: userRef(),
 	tokenHash: text().notNull().unique(),
-	createdAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
-	expiresAt: timestamp({ withTimezone: true }).notNull(),
-	usedAt: timestamp({ withTimezone: true })
+	createdAt: createdAt(),
+	expiresAt: timestampTz().notNull(),
+	usedAt: timestampTz()
 });
 
 /** Sign-in attempts, for the per-address and per-client rate limit (kept in the database so
@@ -42,10 +38,10 @@ export const passwordResets = pgTable('password_resets', {
 export const signInAttempts = pgTable(
 	'sign_in_attempts',
 	{
-		id: uuid().primaryKey().defaultRandom(),
+		id: uuidKey(),
 		email: text().notNull(),
 		client: text().notNull(),
-		at: timestamp({ withTimezone: true }).notNull().defaultNow(),
+		at: timestampTz().notNull().defaultNow(),
 		succeeded: text().notNull().default('no')
 	},
 	(t) => [

@@ -1,18 +1,17 @@
 import { sql } from 'drizzle-orm';
-import { bigint, check, index, jsonb, pgTable, text, timestamp, uuid } from 'drizzle-orm/pg-core';
-import { shops } from './shops';
+import { bigint, check, index, jsonb, pgTable, text } from 'drizzle-orm/pg-core';
+import { timestampTz } from './columns';
+import { shopRef } from './refs';
 
 /** Who changed what, when, from what to what. Written in the same transaction as the change. */
 export const auditLog = pgTable(
 	'audit_log',
 	{
 		id: bigint({ mode: 'number' }).primaryKey().generatedAlwaysAsIdentity(),
-		shopId: uuid()
-			.notNull()
-			.references(() => shops.id, { onDelete: 'cascade' }),
+		shopId: shopRef(),
 		actorUserId: text(),
 		actorLabel: text().notNull(),
-		at: timestamp({ withTimezone: true }).notNull().defaultNow(),
+		at: timestampTz().notNull().defaultNow(),
 		entity: text().notNull(),
 		entityId: text().notNull(),
 		action: text().notNull(),

@@ -1,7 +1,8 @@
 // The tables @auth/drizzle-adapter needs, with Auth.js's own table names, plus Lapmark's
 // password hash on the user. Property names follow the adapter; columns are snake_case.
 import { sql } from 'drizzle-orm';
-import { check, index, integer, pgTable, primaryKey, text, timestamp, uuid } from 'drizzle-orm/pg-core';
+import { check, index, integer, pgTable, primaryKey, text, timestamp } from 'drizzle-orm/pg-core';
+import { createdAt, timestampTz, uuidKey } from './columns';
 
 export const users = pgTable('user', {
 	id: text()
@@ -12,7 +13,7 @@ export const users = pgTable('user', {
 	emailVerified: timestamp({ mode: 'date', withTimezone: true }),
 	image: text(),
 	passwordHash: text(),
-	createdAt: timestamp({ withTimezone: true }).notNull().defaultNow()
+	createdAt: createdAt()
 });
 export type User = typeof users.$inferSelect;
 
@@ -64,15 +65,15 @@ export const verificationTokens = pgTable(
 export const userSessions = pgTable(
 	'user_sessions',
 	{
-		id: uuid().primaryKey().defaultRandom(),
+		id: uuidKey(),
 		userId: text()
 			.notNull()
 			.references(() => users.id, { onDelete: 'cascade' }),
-		createdAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
-		lastSeenAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
-		idleExpiresAt: timestamp({ withTimezone: true }).notNull(),
-		expiresAt: timestamp({ withTimezone: true }).notNull(),
-		revokedAt: timestamp({ withTimezone: true })
+		createdAt: createdAt(),
+		lastSeenAt: timestampTz().notNull().defaultNow(),
+		idleExpiresAt: timestampTz().notNull(),
+		expiresAt: timestampTz().notNull(),
+		revokedAt: timestampTz()
 	},
 	(t) => [index('user_sessions_user_idx').on(t.userId)]
 );
@@ -86,13 +87,13 @@ export const userSessions = pgTable(
 export const authMailRequests = pgTable(
 	'auth_mail_requests',
 	{
-		id: uuid().primaryKey().defaultRandom(),
+		id: uuidKey(),
 		kind: text().notNull(),
 		email: text().notNull(),
 		/** Sign-in links: the same-origin path to open after signing in. */
 		redirectTo: text(),
-		createdAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
-		doneAt: timestamp({ withTimezone: true })
+		createdAt: createdAt(),
+		doneAt: timestampTz()
 	},
 	(t) => [
 		index('auth_mail_requests_pending_idx').on(t.createdAt).where(sql`${t.doneAt} is null`),

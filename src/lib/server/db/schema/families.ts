@@ -3,27 +3,23 @@ import {
 	check,
 	date,
 	doublePrecision,
-	foreignKey,
 	index,
 	pgTable,
 	smallint,
 	text,
-	timestamp,
 	unique,
 	uuid
 } from 'drizzle-orm/pg-core';
-import { users } from './auth';
+import { createdAt, uuidKey } from './columns';
 import { measurementEnum, sideEnum, stageEnum } from './enums';
-import { shops } from './shops';
+import { byUser, sameShopKey, shopRef } from './refs';
 
 /** An engine family: the layout of its heads and the nominal stem diameters. */
 export const families = pgTable(
 	'families',
 	{
-		id: uuid().primaryKey().defaultRandom(),
-		shopId: uuid()
-			.notNull()
-			.references(() => shops.id, { onDelete: 'cascade' }),
+		id: uuidKey(),
+		shopId: shopRef(),
 		code: text().notNull(),
 		description: text().notNull().default(''),
 		cylinders: smallint().notNull(),
@@ -31,7 +27,7 @@ export const families = pgTable(
 		exhaustValves: smallint().notNull(),
 		intakeStemMm: doublePrecision(),
 		exhaustStemMm: doublePrecision(),
-		createdAt: timestamp({ withTimezone: true }).notNull().defaultNow()
+		createdAt: createdAt()
 	},
 	(t) => [
 		unique('families_shop_code_key').on(t.shopId, t.code),
@@ -55,7 +51,7 @@ export type Family = typeof families.$inferSelect;
 export const limits = pgTable(
 	'limits',
 	{
-		id: uuid().primaryKey().defaultRandom(),
+		id: uuidKey(),
 		shopId: uuid().notNull(),
 		familyId: uuid().notNull(),
 		measurement: measurementEnum().notNull(),
@@ -65,15 +61,11 @@ export const limits = pgTable(
 		max: doublePrecision(),
 		effectiveFrom: date().notNull(),
 		note: text().notNull().default(''),
-		createdBy: text().references(() => users.id, { onDelete: 'set null' }),
-		createdAt: timestamp({ withTimezone: true }).notNull().defaultNow()
+		createdBy: byUser(),
+		createdAt: createdAt()
 	},
 	(t) => [
-		foreignKey({
-			name: 'limits_family_fk',
-			columns: [t.shopId, t.familyId],
-			foreignColumns: [families.shopId, families.id]
-		}).onDelete('cascade'),
+		sameShopKey('limits_family_fk', t.shopId, t.familyId, families).onDelete('cascade'),
 		unique('limits_version_key').on(t.familyId, t.measurement, t.side, t.stage, t.effectiveFrom),
 		index('limits_lookup_idx').on(t.shopId, t.familyId, t.measurement, t.stage, t.side, t.effectiveFrom),
 		check('limits_has_bound', sql`${t.min} is not null or ${t.max} is not null`),

@@ -4,30 +4,26 @@ import {
 	check,
 	date,
 	doublePrecision,
-	foreignKey,
 	index,
 	integer,
 	jsonb,
 	pgTable,
 	smallint,
 	text,
-	timestamp,
 	unique,
 	uuid
 } from 'drizzle-orm/pg-core';
-import { users } from './auth';
-import { decisionKindEnum, headStatusEnum, leakPathEnum, sideEnum } from './enums';
+import { createdAt, cylinderCheck, timestampTz, uuidKey, valvePosition, valvePositionChecks } from './columns';
+import { decisionKindEnum, headStatusEnum, leakPathEnum } from './enums';
 import { families } from './families';
-import { shops } from './shops';
+import { byUser, sameShopKey, shopRef } from './refs';
 
 /** One cylinder head job: the head as it came in, and where it is in the shop. */
 export const heads = pgTable(
 	'heads',
 	{
-		id: uuid().primaryKey().defaultRandom(),
-		shopId: uuid()
-			.notNull()
-			.references(() => shops.id, { onDelete: 'cascade' }),
+		id: uuidKey(),
+		shopId: shopRef(),
 		familyId: uuid().notNull(),
 		serial: text().notNull(),
 		customer: text().notNull().default(''),
@@ -41,18 +37,14 @@ export const heads = pgTable(
 		/** Set on a job that brings a released head back: the original job. */
 		comebackOf: uuid().references((): AnyPgColumn => heads.id, { onDelete: 'set null' }),
 		/** Who released the head, and the owner's written reason when it went out over a failing check. */
-		releasedBy: text().references(() => users.id, { onDelete: 'set null' }),
+		releasedBy: byUser(),
 		releaseOverrideReason: text(),
 		/** The import that created this head, so undoing the import can remove it. */
 		createdByBatch: uuid(),
-		createdAt: timestamp({ withTimezone: true }).notNull().defaultNow()
+		createdAt: createdAt()
 	},
 	(t) => [
-		foreignKey({
-			name: 'heads_family_fk',
-			columns: [t.shopId, t.familyId],
-			foreignColumns: [families.shopId, families.id]
-		}).onUpdate('cascade'),
+		sameShopKey('heads_family_fk', t.shopId, t.familyId, families).onUpdate('cascade'),
 		unique('heads_shop_serial_key').on(t.shopId, t.serial),
 		unique('heads_shop_id_family_key').on(t.shopId, t.id, t.familyId),
 		unique('heads_shop_id_key').on(t.shopId, t.id),
@@ -74,7 +66,7 @@ export type Head = typeof heads.$inferSelect;
 export const cylinderLeakage = pgTable(
 	'cylinder_leakage',
 	{
-		id: uuid().primaryKey().defaultRandom(),
+		id: uuidKey(),
 		shopId: uuid().notNull(),
 		headId: uuid().notNull(),
 		cylinder: smallint().notNull(),
@@ -82,12 +74,12 @@ export const cylinderLeakage = pgTable(
 		pressureInKpa: doublePrecision(),
 		pressureHeldKpa: doublePrecision(),
 		leakPath: leakPathEnum().notNull().default('none'),
-		createdAt: timestamp({ withTimezone: true }).notNull().defaultNow()
+		createdAt: createdAt()
 	},
 	(t) => [
-		foreignKey({ name: 'cylinder_leakage_head_fk', columns: [t.shopId, t.headId], foreignColumns: [heads.shopId, heads.id] }).onDelete('cascade'),
+		sameShopKey('cylinder_leakage_head_fk', t.shopId, t.headId, heads).onDelete('cascade'),
 		unique('cylinder_leakage_head_cylinder_key').on(t.headId, t.cylinder),
-		check('cylinder_leakage_cylinder_range', sql`${t.cylinder} between 1 and 16`),
+		cylinderCheck('cylinder_leakage', t.cylinder),
 		check('cylinder_leakage_pct_range', sql`${t.leakagePct} between 0 and 100`),
 		check(
 			'cylinder_leakage_pressures',
@@ -100,25 +92,22 @@ export const cylinderLeakage = pgTable(
 export const decisions = pgTable(
 	'decisions',
 	{
-		id: uuid().primaryKey().defaultRandom(),
+		id: uuidKey(),
 		shopId: uuid().notNull(),
 		headId: uuid().notNull(),
-		cylinder: smallint().notNull(),
-		side: sideEnum().notNull(),
-		valve: smallint().notNull(),
+		...valvePosition(),
 		suggested: decisionKindEnum(),
 		rule: text().notNull().default(''),
 		kind: decisionKindEnum().notNull(),
 		note: text().notNull().default(''),
-		decidedBy: text().references(() => users.id, { onDelete: 'set null' }),
-		decidedAt: timestamp({ withTimezone: true }).notNull().defaultNow()
+		decidedBy: byUser(),
+		decidedAt: timestampTz().notNull().defaultNow()
 	},
 	(t) => [
-		foreignKey({ name: 'decisions_head_fk', columns: [t.shopId, t.headId], foreignColumns: [heads.shopId, heads.id] }).onDelete('cascade'),
+		sameShopKey('decisions_head_fk', t.shopId, t.headId, heads).onDelete('cascade'),
 		unique('decisions_position_key').on(t.headId, t.cylinder, t.side, t.valve),
 		index('decisions_shop_kind_idx').on(t.shopId, t.kind),
-		check('decisions_cylinder_range', sql`${t.cylinder} between 1 and 16`),
-		check('decisions_valve_range', sql`${t.valve} between 1 and 3`)
+		...valvePositionChecks('decisions', t)
 	]
 );
 export type Decision = typeof decisions.$inferSelect;
@@ -137,18 +126,18 @@ export interface PositionRef {
 export const comebacks = pgTable(
 	'comebacks',
 	{
-		id: uuid().primaryKey().defaultRandom(),
+		id: uuidKey(),
 		shopId: uuid().notNull(),
 		headId: uuid().notNull(),
 		originalHeadId: uuid().notNull(),
 		whatFailed: text().notNull(),
 		positions: jsonb().$type<PositionRef[]>().notNull().default([]),
-		recordedBy: text().references(() => users.id, { onDelete: 'set null' }),
-		createdAt: timestamp({ withTimezone: true }).notNull().defaultNow()
+		recordedBy: byUser(),
+		createdAt: createdAt()
 	},
 	(t) => [
-		foreignKey({ name: 'comebacks_head_fk', columns: [t.shopId, t.headId], foreignColumns: [heads.shopId, heads.id] }).onDelete('cascade'),
-		foreignKey({ name: 'comebacks_original_fk', columns: [t.shopId, t.originalHeadId], foreignColumns: [heads.shopId, heads.id] }).onDelete('cascade'),
+		sameShopKey('comebacks_head_fk', t.shopId, t.headId, heads).onDelete('cascade'),
+		sameShopKey('comebacks_original_fk', t.shopId, t.originalHeadId, heads).onDelete('cascade'),
 		unique('comebacks_head_key').on(t.headId),
 		index('comebacks_original_idx').on(t.originalHeadId),
 		check('comebacks_not_own', sql`${t.headId} <> ${t.originalHeadId}`),

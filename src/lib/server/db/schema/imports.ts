@@ -1,17 +1,15 @@
 import { sql } from 'drizzle-orm';
-import { bigint, check, foreignKey, index, integer, jsonb, pgTable, text, timestamp, unique, uniqueIndex, uuid } from 'drizzle-orm/pg-core';
-import { users } from './auth';
+import { bigint, check, index, integer, jsonb, pgTable, text, unique, uniqueIndex, uuid } from 'drizzle-orm/pg-core';
+import { createdAt, timestampTz, uuidKey } from './columns';
 import { batchStatusEnum } from './enums';
-import { shops } from './shops';
+import { byUser, sameShopKey, shopRef } from './refs';
 
 /** One uploaded file. Its readings are committed together with it or not at all. */
 export const importBatches = pgTable(
 	'import_batches',
 	{
-		id: uuid().primaryKey().defaultRandom(),
-		shopId: uuid()
-			.notNull()
-			.references(() => shops.id, { onDelete: 'cascade' }),
+		id: uuidKey(),
+		shopId: shopRef(),
 		fileName: text().notNull(),
 		contentHash: text().notNull(),
 		layout: text().notNull(),
@@ -28,12 +26,12 @@ export const importBatches = pgTable(
 		/** A reference the uploading page chose, so it can follow progress before the answer comes. */
 		clientRef: text(),
 		error: text(),
-		createdBy: text().references(() => users.id, { onDelete: 'set null' }),
-		createdAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
-		finishedAt: timestamp({ withTimezone: true }),
+		createdBy: byUser(),
+		createdAt: createdAt(),
+		finishedAt: timestampTz(),
 		/** Renewed every few seconds while the import runs (from outside its transaction); a running
 		 * batch whose heartbeat stopped belongs to an import that died, and is marked failed. */
-		heartbeatAt: timestamp({ withTimezone: true }).notNull().defaultNow()
+		heartbeatAt: timestampTz().notNull().defaultNow()
 	},
 	(t) => [
 		unique('import_batches_shop_id_key').on(t.shopId, t.id),
@@ -55,7 +53,7 @@ export type ImportBatch = typeof importBatches.$inferSelect;
 export const importRejects = pgTable(
 	'import_rejects',
 	{
-		id: uuid().primaryKey().defaultRandom(),
+		id: uuidKey(),
 		shopId: uuid().notNull(),
 		batchId: uuid().notNull(),
 		line: integer().notNull(),
@@ -63,7 +61,7 @@ export const importRejects = pgTable(
 		reason: text().notNull()
 	},
 	(t) => [
-		foreignKey({ name: 'import_rejects_batch_fk', columns: [t.shopId, t.batchId], foreignColumns: [importBatches.shopId, importBatches.id] }).onDelete('cascade'),
+		sameShopKey('import_rejects_batch_fk', t.shopId, t.batchId, importBatches).onDelete('cascade'),
 		index('import_rejects_batch_idx').on(t.batchId, t.line),
 		check('import_rejects_line_positive', sql`${t.line} >= 1`)
 	]
@@ -73,14 +71,12 @@ export const importRejects = pgTable(
 export const importMappings = pgTable(
 	'import_mappings',
 	{
-		id: uuid().primaryKey().defaultRandom(),
-		shopId: uuid()
-			.notNull()
-			.references(() => shops.id, { onDelete: 'cascade' }),
+		id: uuidKey(),
+		shopId: shopRef(),
 		signature: text().notNull(),
 		layout: text().notNull(),
 		mapping: jsonb().$type<Record<string, string>>().notNull(),
-		updatedAt: timestamp({ withTimezone: true }).notNull().defaultNow()
+		updatedAt: timestampTz().notNull().defaultNow()
 	},
 	(t) => [
 		unique('import_mappings_shop_signature_key').on(t.shopId, t.signature),

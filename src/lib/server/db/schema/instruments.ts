@@ -1,16 +1,14 @@
 import { sql } from 'drizzle-orm';
-import { boolean, check, date, doublePrecision, foreignKey, index, integer, pgTable, text, timestamp, unique, uuid } from 'drizzle-orm/pg-core';
-import { users } from './auth';
-import { shops } from './shops';
+import { boolean, check, date, doublePrecision, index, integer, pgTable, text, unique, uuid } from 'drizzle-orm/pg-core';
+import { createdAt, uuidKey } from './columns';
+import { byUser, sameShopKey, shopRef } from './refs';
 
 /** Gauges and their calibration. A reading taken after `calibratedOn + intervalDays` is flagged. */
 export const instruments = pgTable(
 	'instruments',
 	{
-		id: uuid().primaryKey().defaultRandom(),
-		shopId: uuid()
-			.notNull()
-			.references(() => shops.id, { onDelete: 'cascade' }),
+		id: uuidKey(),
+		shopId: shopRef(),
 		name: text().notNull(),
 		kind: text().notNull(),
 		serial: text().notNull(),
@@ -18,7 +16,7 @@ export const instruments = pgTable(
 		calibratedOn: date().notNull(),
 		intervalDays: integer().notNull(),
 		retired: boolean().notNull().default(false),
-		createdAt: timestamp({ withTimezone: true }).notNull().defaultNow()
+		createdAt: createdAt()
 	},
 	(t) => [
 		unique('instruments_shop_serial_key').on(t.shopId, t.serial),
@@ -38,17 +36,17 @@ export type Instrument = typeof instruments.$inferSelect;
 export const instrumentCalibrations = pgTable(
 	'instrument_calibrations',
 	{
-		id: uuid().primaryKey().defaultRandom(),
+		id: uuidKey(),
 		shopId: uuid().notNull(),
 		instrumentId: uuid().notNull(),
 		calibratedOn: date().notNull(),
 		intervalDays: integer().notNull(),
 		note: text().notNull().default(''),
-		recordedBy: text().references(() => users.id, { onDelete: 'set null' }),
-		createdAt: timestamp({ withTimezone: true }).notNull().defaultNow()
+		recordedBy: byUser(),
+		createdAt: createdAt()
 	},
 	(t) => [
-		foreignKey({ name: 'instrument_calibrations_instrument_fk', columns: [t.shopId, t.instrumentId], foreignColumns: [instruments.shopId, instruments.id] }).onDelete('cascade'),
+		sameShopKey('instrument_calibrations_instrument_fk', t.shopId, t.instrumentId, instruments).onDelete('cascade'),
 		unique('instrument_calibrations_day_key').on(t.instrumentId, t.calibratedOn),
 		check('instrument_calibrations_interval_range', sql`${t.intervalDays} between 1 and 3650`)
 	]

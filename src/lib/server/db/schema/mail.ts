@@ -1,5 +1,6 @@
 import { sql } from 'drizzle-orm';
-import { check, index, integer, pgTable, text, timestamp, uuid } from 'drizzle-orm/pg-core';
+import { check, index, integer, pgTable, text, uuid } from 'drizzle-orm/pg-core';
+import { createdAt, timestampTz, uuidKey } from './columns';
 
 /**
  * Outgoing mail. A message is queued in the same transaction as the change that causes it
@@ -8,18 +9,18 @@ import { check, index, integer, pgTable, text, timestamp, uuid } from 'drizzle-o
 export const mailOutbox = pgTable(
 	'mail_outbox',
 	{
-		id: uuid().primaryKey().defaultRandom(),
+		id: uuidKey(),
 		shopId: uuid(),
 		to: text().notNull(),
 		subject: text().notNull(),
 		text: text().notNull(),
 		html: text(),
 		kind: text().notNull(),
-		createdAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
-		sentAt: timestamp({ withTimezone: true }),
+		createdAt: createdAt(),
+		sentAt: timestampTz(),
 		attempts: integer().notNull().default(0),
 		lastError: text(),
-		nextAttemptAt: timestamp({ withTimezone: true }).notNull().defaultNow()
+		nextAttemptAt: timestampTz().notNull().defaultNow()
 	},
 	(t) => [
 		index('mail_outbox_pending_idx').on(t.nextAttemptAt).where(sql`${t.sentAt} is null`),

@@ -8,15 +8,15 @@ import {
 	pgTable,
 	smallint,
 	text,
-	timestamp,
 	unique,
 	uuid
 } from 'drizzle-orm/pg-core';
-import { users } from './auth';
-import { boreDirectionEnum, boreHeightEnum, measurementEnum, sideEnum, stageEnum } from './enums';
+import { measuredByCheck, timestampTz, uuidKey, valvePosition, valvePositionChecks } from './columns';
+import { boreDirectionEnum, boreHeightEnum, measurementEnum, stageEnum } from './enums';
 import { heads } from './heads';
 import { importBatches } from './imports';
 import { instruments } from './instruments';
+import { byUser, sameShopKey } from './refs';
 
 /**
  * Readings in long form: one row per head × stage × cylinder × side × valve × measurement ×
@@ -31,12 +31,10 @@ export const readings = pgTable(
 		headId: uuid().notNull(),
 		familyId: uuid().notNull(),
 		stage: stageEnum().notNull(),
-		cylinder: smallint().notNull(),
-		side: sideEnum().notNull(),
-		valve: smallint().notNull(),
+		...valvePosition(),
 		measurement: measurementEnum().notNull(),
 		value: doublePrecision().notNull(),
-		measuredAt: timestamp({ withTimezone: true }).notNull(),
+		measuredAt: timestampTz().notNull(),
 		measuredBy: text().notNull(),
 		instrumentId: uuid(),
 		batchId: uuid(),
@@ -59,24 +57,15 @@ export const readings = pgTable(
 		})
 			.onDelete('cascade')
 			.onUpdate('cascade'),
-		foreignKey({
-			name: 'readings_instrument_fk',
-			columns: [t.shopId, t.instrumentId],
-			foreignColumns: [instruments.shopId, instruments.id]
-		}),
-		foreignKey({
-			name: 'readings_batch_fk',
-			columns: [t.shopId, t.batchId],
-			foreignColumns: [importBatches.shopId, importBatches.id]
-		}),
+		sameShopKey('readings_instrument_fk', t.shopId, t.instrumentId, instruments),
+		sameShopKey('readings_batch_fk', t.shopId, t.batchId, importBatches),
 		unique('readings_identity_key').on(t.headId, t.stage, t.cylinder, t.side, t.valve, t.measurement, t.measuredAt),
 		index('readings_analytics_idx').on(t.shopId, t.measurement, t.stage, t.side, t.familyId),
 		index('readings_batch_idx').on(t.batchId),
 		// In the database it also INCLUDEs (value, head_id, cylinder, valve), which Drizzle cannot
 		// express: see drizzle/0004_stats_summaries.sql.
 		index('readings_series_idx').on(t.shopId, t.seriesKey, t.familyId, t.measuredAt),
-		check('readings_cylinder_range', sql`${t.cylinder} between 1 and 16`),
-		check('readings_valve_range', sql`${t.valve} between 1 and 3`),
+		...valvePositionChecks('readings', t),
 		check('readings_value_finite', sql`${t.value} >= 0 and ${t.value} < 'Infinity'::float8`),
 		check(
 			'readings_value_plausible',
@@ -94,7 +83,7 @@ export const readings = pgTable(
 				when 'fluid_hold' then ${t.value} <= 3600
 				else true end`
 		),
-		check('readings_measured_by_not_blank', sql`length(trim(${t.measuredBy})) between 1 and 120`)
+		measuredByCheck('readings', t.measuredBy)
 	]
 );
 export type Reading = typeof readings.$inferSelect;
@@ -108,29 +97,26 @@ export type Reading = typeof readings.$inferSelect;
 export const boreReadings = pgTable(
 	'bore_readings',
 	{
-		id: uuid().primaryKey().defaultRandom(),
+		id: uuidKey(),
 		shopId: uuid().notNull(),
 		headId: uuid().notNull(),
 		stage: stageEnum().notNull(),
-		cylinder: smallint().notNull(),
-		side: sideEnum().notNull(),
-		valve: smallint().notNull(),
+		...valvePosition(),
 		direction: boreDirectionEnum().notNull(),
 		height: boreHeightEnum().notNull(),
 		valueMm: doublePrecision().notNull(),
-		measuredAt: timestamp({ withTimezone: true }).notNull(),
+		measuredAt: timestampTz().notNull(),
 		measuredBy: text().notNull(),
 		instrumentId: uuid(),
-		enteredBy: text().references(() => users.id, { onDelete: 'set null' })
+		enteredBy: byUser()
 	},
 	(t) => [
-		foreignKey({ name: 'bore_readings_head_fk', columns: [t.shopId, t.headId], foreignColumns: [heads.shopId, heads.id] }).onDelete('cascade'),
-		foreignKey({ name: 'bore_readings_instrument_fk', columns: [t.shopId, t.instrumentId], foreignColumns: [instruments.shopId, instruments.id] }),
+		sameShopKey('bore_readings_head_fk', t.shopId, t.headId, heads).onDelete('cascade'),
+		sameShopKey('bore_readings_instrument_fk', t.shopId, t.instrumentId, instruments),
 		unique('bore_readings_cell_key').on(t.headId, t.stage, t.cylinder, t.side, t.valve, t.direction, t.height),
-		check('bore_readings_cylinder_range', sql`${t.cylinder} between 1 and 16`),
-		check('bore_readings_valve_range', sql`${t.valve} between 1 and 3`),
+		...valvePositionChecks('bore_readings', t),
 		check('bore_readings_value_plausible', sql`${t.valueMm} between 1 and 30`),
-		check('bore_readings_measured_by_not_blank', sql`length(trim(${t.measuredBy})) between 1 and 120`)
+		measuredByCheck('bore_readings', t.measuredBy)
 	]
 );
 export type BoreReading = typeof boreReadings.$inferSelect;

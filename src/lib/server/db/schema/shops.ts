@@ -1,7 +1,8 @@
 import { sql } from 'drizzle-orm';
-import { check, index, jsonb, pgTable, primaryKey, text, timestamp, uuid } from 'drizzle-orm/pg-core';
+import { check, index, jsonb, pgTable, primaryKey, text, uuid } from 'drizzle-orm/pg-core';
 import type { Currency, ShopDistanceUnit, ShopLengthUnit } from '../../../shop-settings';
 import { users } from './auth';
+import { createdAt, timestampTz, uuidKey } from './columns';
 import { roleEnum } from './enums';
 
 export interface ShopSettings {
@@ -16,7 +17,7 @@ export interface ShopSettings {
 export const shops = pgTable(
 	'shops',
 	{
-		id: uuid().primaryKey().defaultRandom(),
+		id: uuidKey(),
 		name: text().notNull(),
 		slug: text().notNull().unique(),
 		settings: jsonb().$type<ShopSettings>().notNull().default({}),
@@ -24,7 +25,7 @@ export const shops = pgTable(
 		lengthUnit: text().$type<ShopLengthUnit>().notNull().default('mm'),
 		distanceUnit: text().$type<ShopDistanceUnit>().notNull().default('km'),
 		currency: text().$type<Currency>().notNull().default('EUR'),
-		createdAt: timestamp({ withTimezone: true }).notNull().defaultNow()
+		createdAt: createdAt()
 	},
 	(t) => [
 		check('shops_name_not_blank', sql`length(trim(${t.name})) between 1 and 120`),
@@ -46,7 +47,7 @@ export const memberships = pgTable(
 			.notNull()
 			.references(() => users.id, { onDelete: 'cascade' }),
 		role: roleEnum().notNull(),
-		createdAt: timestamp({ withTimezone: true }).notNull().defaultNow()
+		createdAt: createdAt()
 	},
 	(t) => [primaryKey({ columns: [t.shopId, t.userId] }), index('memberships_user_idx').on(t.userId)]
 );
@@ -60,7 +61,7 @@ export type Membership = typeof memberships.$inferSelect;
 export const shopSignups = pgTable(
 	'shop_signups',
 	{
-		id: uuid().primaryKey().defaultRandom(),
+		id: uuidKey(),
 		email: text().notNull(),
 		ownerName: text().notNull(),
 		passwordHash: text().notNull(),
@@ -69,9 +70,9 @@ export const shopSignups = pgTable(
 		distanceUnit: text().$type<ShopDistanceUnit>().notNull(),
 		currency: text().$type<Currency>().notNull(),
 		tokenHash: text().notNull().unique(),
-		createdAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
-		expiresAt: timestamp({ withTimezone: true }).notNull(),
-		confirmedAt: timestamp({ withTimezone: true }),
+		createdAt: createdAt(),
+		expiresAt: timestampTz().notNull(),
+		confirmedAt: timestampTz(),
 		shopId: uuid().references(() => shops.id, { onDelete: 'set null' })
 	},
 	(t) => [index('shop_signups_email_idx').on(t.email, t.createdAt)]

@@ -1,5 +1,5 @@
 import { sql } from 'drizzle-orm';
-import { check, date, doublePrecision, integer, pgTable, primaryKey, smallint, uuid } from 'drizzle-orm/pg-core';
+import { type AnyPgColumn, check, date, doublePrecision, integer, pgTable, primaryKey, smallint, uuid } from 'drizzle-orm/pg-core';
 
 // Per-group summaries of `readings`, kept current by statement-level triggers on readings
 // (drizzle/0004_stats_summaries.sql), so the statistics routes never rescan every reading.
@@ -12,14 +12,26 @@ import { check, date, doublePrecision, integer, pgTable, primaryKey, smallint, u
 // cascaded delete (a shop, a head) the triggers rewrite them while the parent rows are already
 // gone, which a foreign key would refuse.
 
+/** The key every summary starts with: shop × series × family (a month or a value follows). */
+function summaryGroup() {
+	return {
+		shopId: uuid().notNull(),
+		/** measurement × stage × side, as readings.series_key. */
+		seriesKey: smallint().notNull(),
+		familyId: uuid().notNull()
+	};
+}
+
+/** The primary key `<table>_pkey`: the group, then the month and/or the value. */
+function summaryKey(table: string, t: { shopId: AnyPgColumn; seriesKey: AnyPgColumn; familyId: AnyPgColumn }, ...rest: AnyPgColumn[]) {
+	return primaryKey({ name: `${table}_pkey`, columns: [t.shopId, t.seriesKey, t.familyId, ...rest] });
+}
+
 /** Count, mean and M2 = Σ(x − mean)² per group-month (Chan, Golub & LeVeque merge on insert). */
 export const readingSummaries = pgTable(
 	'reading_summaries',
 	{
-		shopId: uuid().notNull(),
-		/** measurement × stage × side, as readings.series_key. */
-		seriesKey: smallint().notNull(),
-		familyId: uuid().notNull(),
+		...summaryGroup(),
 		/** First day of the month (UTC) the readings were taken in. */
 		month: date().notNull(),
 		n: integer().notNull(),
@@ -29,7 +41,7 @@ export const readingSummaries = pgTable(
 		max: doublePrecision().notNull()
 	},
 	(t) => [
-		primaryKey({ name: 'reading_summaries_pkey', columns: [t.shopId, t.seriesKey, t.familyId, t.month] }),
+		summaryKey('reading_summaries', t, t.month),
 		check('reading_summaries_n_positive', sql`${t.n} > 0`),
 		check('reading_summaries_m2_non_negative', sql`${t.m2} >= 0`)
 	]
@@ -44,19 +56,13 @@ export type ReadingSummary = typeof readingSummaries.$inferSelect;
 export const readingValueCounts = pgTable(
 	'reading_value_counts',
 	{
-		shopId: uuid().notNull(),
-		/** measurement × stage × side, as readings.series_key. */
-		seriesKey: smallint().notNull(),
-		familyId: uuid().notNull(),
+		...summaryGroup(),
 		month: date().notNull(),
 		value: doublePrecision().notNull(),
 		n: integer().notNull()
 	},
 	(t) => [
-		primaryKey({
-			name: 'reading_value_counts_pkey',
-			columns: [t.shopId, t.seriesKey, t.familyId, t.month, t.value]
-		}),
+		summaryKey('reading_value_counts', t, t.month, t.value),
 		check('reading_value_counts_n_non_negative', sql`${t.n} >= 0`)
 	]
 );
@@ -69,15 +75,12 @@ export type ReadingValueCount = typeof readingValueCounts.$inferSelect;
 export const readingValueTotals = pgTable(
 	'reading_value_totals',
 	{
-		shopId: uuid().notNull(),
-		/** measurement × stage × side, as readings.series_key. */
-		seriesKey: smallint().notNull(),
-		familyId: uuid().notNull(),
+		...summaryGroup(),
 		value: doublePrecision().notNull(),
 		n: integer().notNull()
 	},
 	(t) => [
-		primaryKey({ name: 'reading_value_totals_pkey', columns: [t.shopId, t.seriesKey, t.familyId, t.value] }),
+		summaryKey('reading_value_totals', t, t.value),
 		check('reading_value_totals_n_positive', sql`${t.n} > 0`)
 	]
 );

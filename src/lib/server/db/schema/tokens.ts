@@ -1,28 +1,24 @@
 import { sql } from 'drizzle-orm';
-import { check, index, pgTable, text, timestamp, uuid } from 'drizzle-orm/pg-core';
-import { users } from './auth';
+import { check, index, pgTable, text } from 'drizzle-orm/pg-core';
+import { createdAt, timestampTz, uuidKey } from './columns';
 import { roleEnum } from './enums';
-import { shops } from './shops';
+import { shopRef, userRef } from './refs';
 
 /** API tokens: only a SHA-256 hash of the secret is stored; `prefix` is shown to tell them apart. */
 export const apiTokens = pgTable(
 	'api_tokens',
 	{
-		id: uuid().primaryKey().defaultRandom(),
-		shopId: uuid()
-			.notNull()
-			.references(() => shops.id, { onDelete: 'cascade' }),
-		userId: text()
-			.notNull()
-			.references(() => users.id, { onDelete: 'cascade' }),
+		id: uuidKey(),
+		shopId: shopRef(),
+		userId: userRef(),
 		name: text().notNull(),
 		prefix: text().notNull(),
 		tokenHash: text().notNull().unique(),
 		role: roleEnum().notNull(),
-		createdAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
-		expiresAt: timestamp({ withTimezone: true }),
-		lastUsedAt: timestamp({ withTimezone: true }),
-		revokedAt: timestamp({ withTimezone: true })
+		createdAt: createdAt(),
+		expiresAt: timestampTz(),
+		lastUsedAt: timestampTz(),
+		revokedAt: timestampTz()
 	},
 	(t) => [
 		index('api_tokens_shop_idx').on(t.shopId, t.createdAt),
