@@ -7,7 +7,7 @@ import type { Conn } from '../../db/scope';
 import { seriesKeys } from '../../db/series';
 import { comebackTallies, decisionTallies, measurementTallies, type PositionTally } from '../../queries/stats';
 import { compareProportions, wilson } from '../../stats';
-import { echo, labelOf, resolveFamily, selection } from './selection';
+import { echo, headSelection, labelOf, resolveFamily, selection } from './selection';
 
 /** Measurements taken only at the final check: their rates default to that stage. */
 const FINAL_ONLY: readonly Measurement[] = ['roughness_ra', 'vacuum_hold', 'fluid_hold'];
@@ -56,20 +56,7 @@ export async function rates(conn: Conn, shopId: string, q: RatesQuery): Promise<
 		tallies = await measurementTallies(conn, shopId, selection(q, seriesKeys(m, stage, q.side), family));
 	} else {
 		check = { kind: 'decision', decision: q.check.decision };
-		tallies = await decisionTallies(
-			conn,
-			shopId,
-			{
-				familyIds: family ? [family.id] : null,
-				side: q.side ?? null,
-				from: q.from ?? null,
-				to: q.to ?? null,
-				customer: q.customer ?? null,
-				mileageMin: q.mileageMin ?? null,
-				mileageMax: q.mileageMax ?? null
-			},
-			q.check.decision
-		);
+		tallies = await decisionTallies(conn, shopId, headSelection(q, family), q.check.decision);
 	}
 	const fam = (id: string) => labelOf(byId, id);
 	const sides = bySide(tallies);
@@ -98,14 +85,7 @@ export async function rates(conn: Conn, shopId: string, q: RatesQuery): Promise<
 
 export async function comebacks(conn: Conn, shopId: string, q: ComebacksQuery): Promise<ComebacksResponse> {
 	const { family, byId } = await resolveFamily(conn, shopId, q.family);
-	const rows = await comebackTallies(conn, shopId, {
-		familyIds: family ? [family.id] : null,
-		from: q.from ?? null,
-		to: q.to ?? null,
-		customer: q.customer ?? null,
-		mileageMin: q.mileageMin ?? null,
-		mileageMax: q.mileageMax ?? null
-	});
+	const rows = await comebackTallies(conn, shopId, headSelection(q, family));
 	const released = rows.reduce((s, r) => s + r.released, 0);
 	const back = rows.reduce((s, r) => s + r.cameBack, 0);
 	return {

@@ -5,7 +5,7 @@ import type { EchoFilters, FamilyLabel, LimitInfo } from '../../../contract';
 import { today } from '../../../domain/days';
 import type { StatsFilters } from '../../../schemas/stats';
 import type { Conn } from '../../db/scope';
-import { limitsOn, shopFamilies, type FamilyRef, type LimitRow, type Selection } from '../../queries/stats';
+import { limitsOn, shopFamilies, type DecisionSelection, type FamilyRef, type LimitRow, type Selection } from '../../queries/stats';
 
 export { today };
 
@@ -45,12 +45,17 @@ export async function resolveFamily(conn: Conn, shopId: string, code: string | u
 }
 
 export function selection(q: Partial<StatsFilters>, keys: number[], family: FamilyRef | null): Selection {
+	const { side: _side, ...head } = headSelection(q, family);
+	return { ...head, keys, machinist: q.machinist ?? null };
+}
+
+/** The head-level filters of a selection (decisions, comebacks): no series, no machinist. */
+export function headSelection(q: Partial<StatsFilters>, family: FamilyRef | null): DecisionSelection {
 	return {
 		familyIds: family ? [family.id] : null,
-		keys,
+		side: q.side ?? null,
 		from: q.from ?? null,
 		to: q.to ?? null,
-		machinist: q.machinist ?? null,
 		customer: q.customer ?? null,
 		mileageMin: q.mileageMin ?? null,
 		mileageMax: q.mileageMax ?? null
