@@ -4,11 +4,12 @@ import { error } from '@sveltejs/kit';
 import type { CapabilityResponse } from '../../../contract';
 import { MEASUREMENT_INFO } from '../../../measurements';
 import type { CapabilityQuery } from '../../../schemas/stats';
+import { today } from '../../../domain/days';
 import type { Conn } from '../../db/scope';
 import { seriesKey } from '../../db/series';
 import { readingsInTimeOrder, type FamilyRef } from '../../queries/stats';
 import { capability as capabilityOf } from '../../stats';
-import { echo, label, limitInfo, limitKey, limitsMap, resolveFamily, selection, today } from './selection';
+import { echo, label, limitInfo, limitKey, limitsMap, resolveFamily, selection } from './selection';
 
 export async function capabilityStudy(conn: Conn, shopId: string, q: CapabilityQuery): Promise<CapabilityResponse> {
 	const { family } = await resolveFamily(conn, shopId, q.family);

@@ -3,12 +3,13 @@ import { error } from '@sveltejs/kit';
 import type { CheckResponse } from '../../../contract';
 import { MEASUREMENT_INFO, toCanonical, unitFits } from '../../../measurements';
 import type { CheckQuery } from '../../../schemas/stats';
+import { today } from '../../../domain/days';
 import type { Conn } from '../../db/scope';
 import { seriesKey } from '../../db/series';
 import { groupData, type FamilyRef } from '../../queries/stats';
 import { expandCounts, modifiedZ, outlierReasons, percentileRank, robustOfSorted, tukeyFlag } from '../../stats';
 import { CAUTION, suggestDecision } from '../decision-rules';
-import { label, limitInfo, limitKey, limitsMap, resolveFamily, selection, today } from './selection';
+import { label, limitInfo, limitKey, limitsMap, resolveFamily, selection } from './selection';
 
 export async function checkReading(conn: Conn, shopId: string, q: CheckQuery): Promise<CheckResponse> {
 	const info = MEASUREMENT_INFO[q.measurement];

@@ -2,11 +2,12 @@
 import type { ControlResponse } from '../../../contract';
 import { MEASUREMENT_INFO } from '../../../measurements';
 import type { ControlQuery } from '../../../schemas/stats';
+import { today } from '../../../domain/days';
 import type { Conn } from '../../db/scope';
 import { seriesKey } from '../../db/series';
 import { readingsInTimeOrder, type FamilyRef } from '../../queries/stats';
 import { controlChart } from '../../stats';
-import { echo, label, limitInfo, limitKey, limitsMap, resolveFamily, selection, today } from './selection';
+import { echo, label, limitInfo, limitKey, limitsMap, resolveFamily, selection } from './selection';
 
 export async function control(conn: Conn, shopId: string, q: ControlQuery): Promise<ControlResponse> {
 	const { family } = await resolveFamily(conn, shopId, q.family);

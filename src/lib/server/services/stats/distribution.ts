@@ -3,11 +3,12 @@
 import { MEASUREMENT_INFO } from '../../../measurements';
 import type { CompareResponse, DistributionResponse, DistributionSummary } from '../../../contract';
 import type { CompareQuery, DistributionQuery } from '../../../schemas/stats';
+import { today } from '../../../domain/days';
 import type { Conn } from '../../db/scope';
 import { seriesKeys } from '../../db/series';
 import { groupData, type GroupData, type LimitRow } from '../../queries/stats';
 import { countBeyond, expandCounts, mergeMoments, momentsOf, summarizeSorted, type Moments, type ValueCount } from '../../stats';
-import { echo, label, limitInfo, limitKey, limitsMap, resolveFamily, selection, today } from './selection';
+import { echo, label, limitInfo, limitKey, limitsMap, resolveFamily, selection } from './selection';
 
 /** Pools groups: frequency tables added value by value, moments merged (Chan et al.). */
 function pool(groups: readonly GroupData[]): { counts: ValueCount[]; moments: Moments } {

@@ -2,12 +2,9 @@
 // none of that code), the selection it makes, the limits in force and the filters echoed back.
 import { error } from '@sveltejs/kit';
 import type { EchoFilters, FamilyLabel, LimitInfo } from '../../../contract';
-import { today } from '../../../domain/days';
 import type { StatsFilters } from '../../../schemas/stats';
 import type { Conn } from '../../db/scope';
 import { limitsOn, shopFamilies, type DecisionSelection, type FamilyRef, type LimitRow, type Selection } from '../../queries/stats';
-
-export { today };
 
 /** The filters a response was computed for (absent ones left out). */
 export function echo(q: Partial<StatsFilters>): EchoFilters {
