@@ -47,4 +47,47 @@ describe('the OpenAPI document', () => {
 	it('serialises to JSON and back unchanged (no functions, no undefined)', () => {
 		expect(JSON.parse(JSON.stringify(OPENAPI))).toEqual(OPENAPI);
 	});
+
+	it('generates every answer from $lib/contract: the fields the figures have, and no others', () => {
+		const schemas = OPENAPI.components.schemas as Record<string, { properties?: Record<string, unknown> }>;
+		const fields = (name: string) => Object.keys(schemas[name].properties ?? {});
+		expect(fields('DistributionResponse')).toEqual(expect.arrayContaining(['iqr', 'madScaled', 'tukeyOutside', 'limits', 'outside', 'limitsAsOf', 'source']));
+		expect(fields('CapabilityResponse')).toEqual(expect.arrayContaining(['cp', 'cpk', 'cpu', 'cpl', 'pp', 'ppk', 'sdWithin', 'sdOverall']));
+		expect(fields('ControlResponse')).toEqual(expect.arrayContaining(['mrBar', 'mrUcl', 'mrLcl', 'specLimits', 'beyondLimits', 'mrBeyondLimits']));
+		expect(fields('WearResponse')).toEqual(expect.arrayContaining(['residualSd', 'slopeSePer10000Km', 'sampled']));
+		expect(schemas.RateCell).toEqual({
+			type: 'object',
+			properties: {
+				failures: { type: 'integer', minimum: 0, maximum: 9007199254740991 },
+				n: { type: 'integer', minimum: 0, maximum: 9007199254740991 },
+				rate: { description: 'failures / n; null when n = 0.', type: ['number', 'null'] },
+				ci95: { description: '95 % Wilson score interval.', $ref: '#/components/schemas/Interval' }
+			},
+			required: ['failures', 'n', 'rate', 'ci95'],
+			additionalProperties: false
+		});
+		// Every fixed object is closed: an answer with a field the contract lacks fails validation.
+		const open: string[] = [];
+		const walk = (node: unknown, at: string) => {
+			if (!node || typeof node !== 'object') return;
+			const o = node as Record<string, unknown>;
+			if (o.type === 'object' && o.properties && o.additionalProperties !== false) open.push(at);
+			for (const [k, v] of Object.entries(o)) walk(v, `${at}/${k}`);
+		};
+		walk(schemas, '#/components/schemas');
+		expect(open).toEqual([]);
+	});
+
+	it('answers each successful JSON response with a schema of the contract', () => {
+		for (const [path, methods] of Object.entries(paths)) {
+			for (const [method, op] of Object.entries(methods)) {
+				for (const [status, r] of Object.entries(op.responses as Record<string, { content?: Record<string, { schema: Record<string, unknown> }> }>)) {
+					const schema = r.content?.['application/json']?.schema;
+					if (!schema || path === '/api/v1/openapi.json') continue;
+					const refs = '$ref' in schema ? [schema] : ((schema.oneOf ?? schema.anyOf) as Record<string, unknown>[]);
+					for (const ref of refs) expect(String(ref.$ref), `${method} ${path} ${status}`).toMatch(/^#\/components\/schemas\/\w+$/);
+				}
+			}
+		}
+	});
 });

@@ -1,11 +1,38 @@
 // The OpenAPI 3.1 description of Lapmark's JSON API (/api/v1/*), served at /api/v1/openapi.json
-// and read by the API guide page. Written by hand, except the query parameters' types, which
-// come from the same zod schemas the routes validate with (zod's JSON Schema output), so the
-// document cannot drift from what the routes accept. openapi.spec.ts checks that every /api/v1
-// route of the access policy is here with each of its methods.
+// and read by the API guide page. Only the paths and their words are written here: every answer's
+// schema is generated from the zod schemas of $lib/contract (zod's JSON Schema output, draft
+// 2020-12, the dialect of OpenAPI 3.1) and every query parameter from the schema its route
+// validates with, so the document cannot drift from what the routes accept and answer.
+// openapi.spec.ts checks that every /api/v1 route of the access policy is here with each of its
+// methods; tests/e2e/api-contract.e2e.ts validates real answers of every route against it.
 import { z } from 'zod';
+import {
+	CapabilityResponse,
+	CheckResponse,
+	ComebacksResponse,
+	CompareResponse,
+	contract,
+	ControlResponse,
+	DescribeResponse,
+	DistributionResponse,
+	ErrorBody,
+	FamiliesResponse,
+	HeaderAdvice,
+	HeaderRefusal,
+	ImportAnswer,
+	ImportDetail,
+	ImportList,
+	ImportUndone,
+	MeResponse,
+	OutliersResponse,
+	OverviewResponse,
+	RatesResponse,
+	ReadingsExport,
+	ReadingsPage,
+	WearResponse
+} from '$lib/contract';
 import type { Role } from '$lib/measurements';
-import { DECISION_KINDS, MEASUREMENTS } from '$lib/measurements';
+import { DECISION_KINDS } from '$lib/measurements';
 import { READINGS_MAX_PAGE_SIZE, readingsQuerySchema } from '$lib/schemas/readings';
 import {
 	DESCRIBE_MAX_VALUES,
@@ -22,6 +49,24 @@ import {
 import { importListSchema, importQuerySchema } from '$lib/schemas/imports';
 
 type Json = Record<string, unknown>;
+
+/** Every named schema of the contract as a component, `$ref`s between them pointing here. */
+function componentSchemas(): Record<string, Json> {
+	const { schemas } = z.toJSONSchema(contract, { target: 'draft-2020-12', io: 'output', uri: (id) => `#/components/schemas/${id}` });
+	return Object.fromEntries(Object.entries(schemas).map(([id, { $schema: _s, $id: _i, ...schema }]) => [id, schema as Json]));
+}
+
+/** A reference to a contract schema's component. */
+function ref(schema: z.ZodType): Json {
+	const id = contract.get(schema)?.id;
+	if (!id) throw new Error('openapi: a response schema is not registered in $lib/contract (named())');
+	return { $ref: `#/components/schemas/${id}` };
+}
+const json = (schema: Json, description: string) => ({ description, content: { 'application/json': { schema } } });
+/** An answer whose body is `schema`. */
+const answer = (schema: z.ZodType, description: string) => json(ref(schema), description);
+const problem = (description: string) => answer(ErrorBody, description);
+const csv = (description: string) => ({ description, content: { 'text/csv': { schema: { type: 'string' } } } });
 
 /** What each query parameter means; the types come from the route's schema. */
 const PARAMETER_TEXT: Record<string, string> = {
@@ -66,9 +111,6 @@ function queryParameters(schema: ZodObjectLike): Json[] {
 	});
 }
 
-const ref = (name: string) => ({ $ref: `#/components/schemas/${name}` });
-const jsonBody = (schema: Json, description: string) => ({ description, content: { 'application/json': { schema } } });
-const problem = (description: string) => ({ description, content: { 'application/json': { schema: ref('Error') } } });
 
 /** The answers every operation can give besides its own. */
 function standardErrors(role: Role | 'public'): Json {
@@ -111,21 +153,8 @@ function operation(id: string, o: Operation): Json {
 }
 
 const idParam = { name: 'id', in: 'path', required: true, description: 'The import batch id (UUID).', schema: { type: 'string', format: 'uuid' } };
-const num = { type: ['number', 'null'] };
-const filtersEcho = { type: 'object', description: 'The filters the answer was computed for, as parsed.' };
-const summaryProps = {
-	n: { type: 'integer' },
-	mean: num,
-	sd: { ...num, description: 'Sample standard deviation; null for fewer than 2 readings.' },
-	min: num,
-	max: num,
-	quantiles: { type: 'object', description: 'p05, p25, p50, p75, p95 by Hyndman & Fan type 7 (PostgreSQL percentile_cont).' },
-	mad: num,
-	fences: { type: 'object', description: "Tukey's fences Q1 − 1.5·IQR and Q3 + 1.5·IQR." },
-	histogram: { type: 'array', items: { type: 'object', properties: { x0: { type: 'number' }, x1: { type: 'number' }, count: { type: 'integer' } } } }
-};
-
 const readingColumns = ['head_serial', 'family', 'customer', 'stage', 'cylinder', 'side', 'valve', 'measurement', 'value', 'unit', 'measured_at', 'measured_by', 'instrument', 'mileage_km', 'batch'];
+const noFamily = problem('No such family.');
 
 export const OPENAPI = {
 	openapi: '3.1.0',
@@ -146,10 +175,10 @@ export const OPENAPI = {
 	],
 	paths: {
 		'/api/v1/me': {
-			get: operation('me', { summary: 'Who the token or session acts as', role: 'viewer', tag: 'Account', example: '', responses: { '200': jsonBody({ type: 'object', properties: { user: { type: 'object' }, shop: { type: 'object' }, role: { type: 'string' }, via: { type: 'string' } } }, 'The user, shop and role.') } })
+			get: operation('me', { summary: 'Who the token or session acts as', role: 'viewer', tag: 'Account', example: '', responses: { '200': answer(MeResponse, 'The user, shop and role.') } })
 		},
 		'/api/v1/openapi.json': {
-			get: operation('openapi', { summary: 'This document', role: 'public', tag: 'Account', example: '', responses: { '200': jsonBody({ type: 'object' }, 'OpenAPI 3.1.') } })
+			get: operation('openapi', { summary: 'This document', role: 'public', tag: 'Account', example: '', responses: { '200': json({ type: 'object', required: ['openapi', 'info', 'paths', 'components'] }, 'OpenAPI 3.1.') } })
 		},
 		'/api/v1/readings': {
 			get: operation('readings', {
@@ -164,7 +193,7 @@ export const OPENAPI = {
 						description: 'The export (with Content-Disposition: attachment; filename=…), or one page.',
 						content: {
 							'text/csv': { schema: { type: 'string' } },
-							'application/json': { schema: { oneOf: [{ type: 'array', items: ref('Reading') }, ref('ReadingsPage')] } }
+							'application/json': { schema: { oneOf: [ref(ReadingsExport), ref(ReadingsPage)] } }
 						}
 					},
 					'404': problem('The family is not one of the shop’s; the message lists them.')
@@ -178,13 +207,7 @@ export const OPENAPI = {
 				tag: 'Statistics',
 				query: checkQuerySchema as unknown as ZodObjectLike,
 				example: 'family=ALDER-4&side=exhaust&measurement=clearance&value=0.0045&unit=in',
-				responses: {
-					'200': jsonBody(
-						{ type: 'object', properties: { withinLimits: { type: ['boolean', 'null'] }, broken: { enum: ['min', 'max', null] }, percentile: num, robustZ: num, tukey: { enum: ['low', 'high', null] }, reasons: { type: 'array', items: ref('Reason') }, suggestion: { type: 'object', properties: { decision: { type: ['string', 'null'] }, rule: { type: 'string' } } } } },
-						'The verdict, the fleet figures and the suggested decision with its rule in words.'
-					),
-					'404': problem('No such family in the shop.')
-				}
+				responses: { '200': answer(CheckResponse, 'The verdict, the fleet figures and the suggested decision with its rule in words.'), '404': problem('No such family in the shop.') }
 			})
 		},
 		'/api/v1/stats/distribution': {
@@ -194,7 +217,7 @@ export const OPENAPI = {
 				tag: 'Statistics',
 				query: distributionQuerySchema as unknown as ZodObjectLike,
 				example: 'measurement=clearance&family=ALDER-4&side=exhaust&stage=as_received',
-				responses: { '200': jsonBody({ type: 'object', properties: { ...summaryProps, filters: filtersEcho, limits: { type: ['object', 'null'] }, outside: { type: 'object' } } }, 'n, mean, sd, quantiles, MAD, fences, histogram, limits in force and the share outside them.'), '404': problem('No such family.') }
+				responses: { '200': answer(DistributionResponse, 'n, mean, sd, quantiles, MAD, fences, histogram, limits in force and the share outside them.'), '404': noFamily }
 			})
 		},
 		'/api/v1/stats/compare': {
@@ -204,7 +227,7 @@ export const OPENAPI = {
 				tag: 'Statistics',
 				query: compareQuerySchema as unknown as ZodObjectLike,
 				example: 'measurement=clearance&side=exhaust&stage=as_received',
-				responses: { '200': jsonBody({ type: 'object', properties: { families: { type: 'array', items: { type: 'object', properties: { family: ref('Family'), ...summaryProps } } } } }, 'One summary per family.') }
+				responses: { '200': answer(CompareResponse, 'One summary per family.') }
 			})
 		},
 		'/api/v1/stats/outliers': {
@@ -215,7 +238,7 @@ export const OPENAPI = {
 				tag: 'Statistics',
 				query: outliersQuerySchema as unknown as ZodObjectLike,
 				example: 'measurement=clearance&side=exhaust&sort=-z&page=1&pageSize=20',
-				responses: { '200': jsonBody({ type: 'object', properties: { total: { type: 'integer' }, page: { type: 'integer' }, pages: { type: 'integer' }, items: { type: 'array', items: { type: 'object', properties: { serial: { type: 'string' }, headId: { type: 'string' }, value: { type: 'number' }, modifiedZ: num, reasons: { type: 'array', items: ref('Reason') } } } } } }, 'One page of flagged readings.'), '404': problem('No such family.') }
+				responses: { '200': answer(OutliersResponse, 'One page of flagged readings.'), '404': noFamily }
 			})
 		},
 		'/api/v1/stats/rates': {
@@ -226,17 +249,11 @@ export const OPENAPI = {
 				tag: 'Statistics',
 				query: ratesQuerySchema as unknown as ZodObjectLike,
 				example: 'check=clearance&stage=as_received',
-				responses: {
-					'200': jsonBody(
-						{ type: 'object', properties: { overall: ref('RateCell'), bySide: { type: 'object', properties: { intake: ref('RateCell'), exhaust: ref('RateCell') } }, sideDifference: { type: ['object', 'null'], properties: { test: { enum: ['fisher', 'chi_square'] }, p: num, difference: num } }, families: { type: 'array' }, byCylinder: { type: 'array' } } },
-						'Rates with intervals and the side test.'
-					),
-					'404': problem('No such family.')
-				}
+				responses: { '200': answer(RatesResponse, 'Rates with intervals and the side test.'), '404': noFamily }
 			})
 		},
 		'/api/v1/stats/comebacks': {
-			get: operation('comebacks', { summary: 'Released heads and how many came back, per family', role: 'viewer', tag: 'Statistics', query: comebacksQuerySchema as unknown as ZodObjectLike, example: 'from=2026-01-01', responses: { '200': jsonBody({ type: 'object', properties: { overall: ref('RateCell'), families: { type: 'array' } } }, 'Comeback rates with Wilson intervals.'), '404': problem('No such family.') } })
+			get: operation('comebacks', { summary: 'Released heads and how many came back, per family', role: 'viewer', tag: 'Statistics', query: comebacksQuerySchema as unknown as ZodObjectLike, example: 'from=2026-01-01', responses: { '200': answer(ComebacksResponse, 'Comeback rates with Wilson intervals.'), '404': noFamily } })
 		},
 		'/api/v1/stats/capability': {
 			get: operation('capability', {
@@ -245,14 +262,14 @@ export const OPENAPI = {
 				tag: 'Statistics',
 				query: capabilityQuerySchema as unknown as ZodObjectLike,
 				example: 'family=ALDER-4&side=intake&measurement=seat_width',
-				responses: { '200': jsonBody({ type: 'object', properties: { n: { type: 'integer' }, cp: num, cpk: num, sdWithin: num, sdOverall: num, verdict: { type: 'object', properties: { level: { type: 'string' }, text: { type: 'string' } } } } }, 'Capability with a verdict in words.'), '404': problem('No such family.'), '422': problem('The limits leave no tolerance.') }
+				responses: { '200': answer(CapabilityResponse, 'Capability with a verdict in words.'), '404': noFamily, '422': problem('The limits leave no tolerance.') }
 			})
 		},
 		'/api/v1/stats/control': {
-			get: operation('control', { summary: 'Individuals and moving-range chart in time order', role: 'viewer', tag: 'Statistics', query: controlQuerySchema as unknown as ZodObjectLike, example: 'family=ALDER-4&side=intake&measurement=seat_width&stage=final&limit=200', responses: { '200': jsonBody({ type: 'object', properties: { centre: num, ucl: num, lcl: num, mrBar: num, mrUcl: num, points: { type: 'array' } } }, 'Centre lines, control limits and the points beyond them.'), '404': problem('No such family.') } })
+			get: operation('control', { summary: 'Individuals and moving-range chart in time order', role: 'viewer', tag: 'Statistics', query: controlQuerySchema as unknown as ZodObjectLike, example: 'family=ALDER-4&side=intake&measurement=seat_width&stage=final&limit=200', responses: { '200': answer(ControlResponse, 'Centre lines, control limits and the points beyond them.'), '404': noFamily } })
 		},
 		'/api/v1/stats/wear': {
-			get: operation('wear', { summary: 'A measurement against head mileage: least-squares line and 95 % band', role: 'viewer', tag: 'Statistics', query: wearQuerySchema as unknown as ZodObjectLike, example: 'measurement=clearance&side=exhaust&family=ALDER-4', responses: { '200': jsonBody({ type: 'object', properties: { n: { type: 'integer' }, slopePer10000Km: num, intercept: num, r2: num, band: { type: 'array' }, points: { type: 'array' } } }, 'The fit and up to 5,000 points.'), '404': problem('No such family.') } })
+			get: operation('wear', { summary: 'A measurement against head mileage: least-squares line and 95 % band', role: 'viewer', tag: 'Statistics', query: wearQuerySchema as unknown as ZodObjectLike, example: 'measurement=clearance&side=exhaust&family=ALDER-4', responses: { '200': answer(WearResponse, 'The fit and up to 5,000 points.'), '404': noFamily } })
 		},
 		'/api/v1/stats/describe': {
 			post: operation('describe', {
@@ -261,17 +278,17 @@ export const OPENAPI = {
 				tag: 'Statistics',
 				requestBody: { required: true, content: { 'application/json': { schema: { type: 'array', items: { type: 'number' }, maxItems: DESCRIBE_MAX_VALUES } } } },
 				exampleBody: { type: 'application/json', data: '[0.051, 0.048, 0.062, 0.055]' },
-				responses: { '200': jsonBody({ type: 'object', properties: { ...summaryProps, lag1Autocorrelation: num } }, 'The same summary as a distribution, plus the lag-1 autocorrelation.'), '413': problem(`More than ${DESCRIBE_MAX_VALUES} numbers.`) }
+				responses: { '200': answer(DescribeResponse, 'The same summary as a distribution, plus the lag-1 autocorrelation.'), '413': problem(`More than ${DESCRIBE_MAX_VALUES} numbers.`) }
 			})
 		},
 		'/api/v1/families': {
-			get: operation('families', { summary: 'The shop’s engine families, layouts and limits in force', role: 'viewer', tag: 'Shop', example: '', responses: { '200': jsonBody({ type: 'object', properties: { families: { type: 'array', items: ref('Family') } } }, 'Families with their limits.') } })
+			get: operation('families', { summary: 'The shop’s engine families, layouts and limits in force', role: 'viewer', tag: 'Shop', example: '', responses: { '200': answer(FamiliesResponse, 'Families with their limits.') } })
 		},
 		'/api/v1/overview': {
-			get: operation('overview', { summary: 'The shop’s figures at a glance', role: 'viewer', tag: 'Shop', example: '', responses: { '200': jsonBody({ type: 'object', properties: { headsReceivedThisMonth: { type: 'integer' }, headsReleasedThisMonth: { type: 'integer' }, headsInWork: { type: 'integer' }, readingsStored: { type: 'integer' }, failingAsReceived: { type: 'array' } } }, 'Counts and as-received failure shares.') } })
+			get: operation('overview', { summary: 'The shop’s figures at a glance', role: 'viewer', tag: 'Shop', example: '', responses: { '200': answer(OverviewResponse, 'Counts and as-received failure shares.') } })
 		},
 		'/api/v1/imports': {
-			get: operation('listImports', { summary: 'Import batches, newest first', role: 'machinist', tag: 'Imports', query: importListSchema as unknown as ZodObjectLike, example: '', responses: { '200': jsonBody({ type: 'object', properties: { batches: { type: 'array' } } }, 'The batches.') } }),
+			get: operation('listImports', { summary: 'Import batches, newest first', role: 'machinist', tag: 'Imports', query: importListSchema as unknown as ZodObjectLike, example: '', responses: { '200': answer(ImportList, 'The batches.') } }),
 			post: operation('importCsv', {
 				summary: 'Import a CSV file of readings (the request body)',
 				role: 'machinist',
@@ -281,20 +298,24 @@ export const OPENAPI = {
 				example: 'layout=wide&onReject=skip&fileName=bench-week-12.csv',
 				exampleBody: { type: 'text/csv', data: '@readings.csv' },
 				responses: {
-					'201': jsonBody({ type: 'object', properties: { batchId: { type: 'string' }, accepted: { type: 'integer' }, rejected: { type: 'integer' }, readings: { type: 'integer' }, rejects: { type: 'array' }, onReject: { enum: ['abort', 'skip'], description: 'What was done with rejected rows.' }, onRejectFrom: { enum: ['request', 'shop setting'], description: 'Whether that came from the request or the shop’s setting.' } } }, 'Stored: counts and the first rejected rows.'),
-					'200': jsonBody({ type: 'object' }, 'A dry run, or a file already imported (duplicateOf).'),
+					'201': answer(ImportAnswer, 'Stored: counts and the first rejected rows.'),
+					'200': answer(ImportAnswer, 'A dry run, or a file already imported (duplicateOf).'),
+					'409': answer(ImportAnswer, 'The same file was imported before (duplicateOf): nothing was stored.'),
 					'413': problem('The file is larger than the upload limit.'),
 					'415': problem('Not sent as text/csv.'),
-					'422': problem('Rows were refused and onReject was abort (asked for, or the shop’s setting): nothing was stored.')
+					'422': json(
+						{ anyOf: [ref(ImportAnswer), ref(HeaderRefusal), ref(ErrorBody)] },
+						'Rows were refused and onReject was abort (asked for, or the shop’s setting): nothing was stored. Or the header cannot be placed, or the file is empty.'
+					)
 				}
 			})
 		},
 		'/api/v1/imports/{id}': {
-			get: operation('getImport', { summary: 'One import batch with its first rejected rows', role: 'machinist', tag: 'Imports', path: [idParam], responses: { '200': jsonBody({ type: 'object' }, 'The batch.'), '404': problem('No such import.') } }),
-			delete: operation('undoImport', { summary: 'Undo an import: its readings, and heads only it created, are removed', role: 'engineer', tag: 'Imports', path: [idParam], responses: { '200': jsonBody({ type: 'object', properties: { status: { const: 'undone' }, readingsRemoved: { type: 'integer' }, headsRemoved: { type: 'integer' } } }, 'Undone.'), '404': problem('No such import.'), '409': problem('Only a committed import can be undone.') } })
+			get: operation('getImport', { summary: 'One import batch with its first rejected rows', role: 'machinist', tag: 'Imports', path: [idParam], responses: { '200': answer(ImportDetail, 'The batch.'), '404': problem('No such import.') } }),
+			delete: operation('undoImport', { summary: 'Undo an import: its readings, and heads only it created, are removed', role: 'engineer', tag: 'Imports', path: [idParam], responses: { '200': answer(ImportUndone, 'Undone.'), '404': problem('No such import.'), '409': problem('Only a committed import can be undone.') } })
 		},
 		'/api/v1/imports/{id}/rejects.csv': {
-			get: operation('importRejects', { summary: 'Every rejected row of an import as CSV', role: 'machinist', tag: 'Imports', path: [idParam], responses: { '200': { description: 'line, reason, row.', content: { 'text/csv': { schema: { type: 'string' } } } }, '404': problem('No such import.') } })
+			get: operation('importRejects', { summary: 'Every rejected row of an import as CSV', role: 'machinist', tag: 'Imports', path: [idParam], responses: { '200': csv('line, reason, row.'), '404': problem('No such import.') } })
 		},
 		'/api/v1/imports/headers': {
 			post: operation('adviseHeaders', {
@@ -303,7 +324,7 @@ export const OPENAPI = {
 				tag: 'Imports',
 				requestBody: { required: true, content: { 'application/json': { schema: { type: 'object', required: ['headers'], properties: { headers: { type: 'array', items: { type: 'string' }, maxItems: 200 }, layout: { enum: ['wide', 'long'] } } } } } },
 				exampleBody: { type: 'application/json', data: '{"headers": ["serial", "family", "cyl", "side", "clearance (in)"]}' },
-				responses: { '200': jsonBody({ type: 'object' }, 'Recognised columns, suggestions and any remembered mapping.') }
+				responses: { '200': answer(HeaderAdvice, 'Recognised columns, suggestions and any remembered mapping.') }
 			})
 		}
 	},
@@ -312,35 +333,7 @@ export const OPENAPI = {
 			bearer: { type: 'http', scheme: 'bearer', description: 'An API token, lmk_… (Shop → API tokens).' },
 			session: { type: 'apiKey', in: 'cookie', name: 'authjs.session-token', description: 'The session of a signed-in browser.' }
 		},
-		schemas: {
-			Error: { type: 'object', required: ['message'], properties: { message: { type: 'string' }, id: { type: 'string', description: 'Reference of an unexpected error in the server log.' } } },
-			Family: { type: 'object', properties: { id: { type: 'string', format: 'uuid' }, code: { type: 'string' } } },
-			Reason: { type: 'object', properties: { code: { enum: ['below_limit', 'above_limit', 'tukey_low', 'tukey_high', 'modified_z'] }, text: { type: 'string' } } },
-			RateCell: { type: 'object', properties: { failures: { type: 'integer' }, n: { type: 'integer' }, rate: num, ci95: { type: 'object', properties: { low: num, high: num } } } },
-			Reading: {
-				type: 'object',
-				properties: {
-					id: { type: 'integer' },
-					headId: { type: 'string', format: 'uuid' },
-					headSerial: { type: 'string' },
-					family: { type: 'string' },
-					customer: { type: 'string' },
-					stage: { enum: ['as_received', 'final'] },
-					cylinder: { type: 'integer' },
-					side: { enum: ['intake', 'exhaust'] },
-					valve: { type: 'integer' },
-					measurement: { enum: [...MEASUREMENTS] },
-					value: { type: 'number', description: 'In `unit`, the measurement’s canonical unit.' },
-					unit: { enum: ['mm', 'um', 'pct', 's'] },
-					measuredAt: { type: 'string', format: 'date-time' },
-					measuredBy: { type: 'string' },
-					instrument: { type: ['string', 'null'], description: 'Serial number of the gauge.' },
-					mileageKm: { type: ['integer', 'null'] },
-					batch: { type: ['string', 'null'], description: 'Import batch id, for imported readings.' }
-				}
-			},
-			ReadingsPage: { type: 'object', properties: { filters: filtersEcho, page: { type: 'integer' }, pageSize: { type: 'integer' }, sort: { type: 'string' }, total: { type: 'integer' }, pages: { type: 'integer' }, items: { type: 'array', items: ref('Reading') } } }
-		}
+		schemas: componentSchemas()
 	}
 } as const;
 

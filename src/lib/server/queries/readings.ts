@@ -2,7 +2,7 @@
 // or the SQL of a whole export that the route streams through a cursor.
 import { sql, type SQL } from 'drizzle-orm';
 import { PgDialect } from 'drizzle-orm/pg-core';
-import type { ReadingItem } from '../../api/readings';
+import type { ReadingItem } from '../../contract';
 import { MEASUREMENTS, MEASUREMENT_INFO, type Measurement, type Side, type Stage } from '../../measurements';
 import type { ReadingSort } from '../../schemas/readings';
 import type { Conn } from '../db/scope';

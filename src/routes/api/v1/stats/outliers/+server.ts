@@ -1,15 +1,13 @@
 import { json } from '@sveltejs/kit';
 import { outliersQuerySchema } from '$lib/schemas/stats';
 import { requireRole } from '$lib/server/auth/guards';
-import { db } from '$lib/server/db';
-import { withShop } from '$lib/server/db/scope';
 import { parseQuery } from '$lib/server/http';
-import { outliers } from '$lib/server/services/stats';
+import { outliersFor } from '$lib/server/services/stats/for-shop';
 import type { RequestHandler } from './$types';
 
 /** Readings outside the limits of their day, outside Tukey's fences or with |modified z| > 3.5, paged. */
 export const GET: RequestHandler = async (event) => {
 	const actor = requireRole(event, 'viewer');
 	const q = parseQuery(outliersQuerySchema, event.url);
-	return json(await withShop(db, actor.shopId, (tx) => outliers(tx, actor.shopId, q)));
+	return json(await outliersFor(actor.shopId, q));
 };

@@ -1,15 +1,13 @@
 import { json } from '@sveltejs/kit';
 import { wearQuerySchema } from '$lib/schemas/stats';
 import { requireRole } from '$lib/server/auth/guards';
-import { db } from '$lib/server/db';
-import { withShop } from '$lib/server/db/scope';
 import { parseQuery } from '$lib/server/http';
-import { wear } from '$lib/server/services/stats';
+import { wearFor } from '$lib/server/services/stats/for-shop';
 import type { RequestHandler } from './$types';
 
 /** A measurement against the head's mileage: least-squares line with the 95 % band of the mean. */
 export const GET: RequestHandler = async (event) => {
 	const actor = requireRole(event, 'viewer');
 	const q = parseQuery(wearQuerySchema, event.url);
-	return json(await withShop(db, actor.shopId, (tx) => wear(tx, actor.shopId, q)));
+	return json(await wearFor(actor.shopId, q));
 };
