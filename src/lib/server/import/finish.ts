@@ -139,24 +139,9 @@ export async function finish(t: ScopedSql, opts: ImportOptions, info: FinishInfo
 	base.readings = info.lines.readings + staged;
 	base.duplicates = candidates - base.readings;
 	base.createdHeads = createdHeads;
-	await commitBatch(t, batchId, {
-		hash: info.hash,
-		layout: info.layout,
-		accepted,
-		rejected,
-		readings: base.readings,
-		duplicates: base.duplicates,
-		createdHeads: base.createdHeads,
-		bytes: info.bytes
-	});
-	await auditImport(t, shopId, opts.actor, batchId, {
-		fileName: opts.fileName,
-		accepted,
-		rejected,
-		readings: base.readings,
-		duplicates: base.duplicates,
-		createdHeads: base.createdHeads
-	});
+	const counts = { accepted, rejected, readings: base.readings, duplicates: base.duplicates, createdHeads: base.createdHeads };
+	await commitBatch(t, batchId, { ...counts, hash: info.hash, layout: info.layout, bytes: info.bytes });
+	await auditImport(t, shopId, opts.actor, batchId, { fileName: opts.fileName, ...counts });
 	info.tm.mark('sql_batch_audit');
 	base.timings = info.tm.timings;
 	base.path = info.path;
