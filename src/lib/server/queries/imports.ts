@@ -1,6 +1,9 @@
 import { and, asc, desc, eq, sql } from 'drizzle-orm';
-import type { Conn } from '../db/scope';
+import type { Conn, ScopedSql } from '../db/scope';
 import { importBatches, importRejects, shops, users } from '../db/schema';
+import type { OnReject } from '../import/types';
+
+export type { OnReject };
 
 const batchColumns = {
 	id: importBatches.id,
@@ -51,6 +54,13 @@ export async function firstRejects(conn: Conn, shopId: string, batchId: string, 
 		.limit(limit);
 }
 
+/** Every rejected row of a batch, by line, a cursor's pages of `rows` (on the postgres.js client
+ * of a scoped transaction, for a streamed download). */
+export function rejectsCursor(t: ScopedSql, shopId: string, batchId: string, rows = 2000) {
+	return t<{ line: number; reason: string; raw: string }[]>`
+		select line, reason, raw from import_rejects where shop_id = ${shopId} and batch_id = ${batchId} order by line`.cursor(rows);
+}
+
 /** Undo a committed batch: its readings go, and the heads it created unless something else
  * refers to them. Returns null when the batch cannot be undone (with the reason). */
 export async function undoBatch(conn: Conn, shopId: string, batchId: string) {
@@ -71,8 +81,6 @@ export async function undoBatch(conn: Conn, shopId: string, batchId: string) {
 	await conn.execute(sql`update import_batches set status = 'undone', finished_at = now() where id = ${batchId}`);
 	return { ok: true as const, readingsRemoved: removed.count, headsRemoved: heads.count };
 }
-
-export type OnReject = 'abort' | 'skip';
 
 /** What an import does with rejected rows when the upload does not say: the shop's setting
  * `onReject` (shops.settings), `abort` for a shop without one. */

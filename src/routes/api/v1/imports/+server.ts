@@ -1,11 +1,9 @@
 import { error, json } from '@sveltejs/kit';
 import { importListSchema, importQuerySchema } from '$lib/schemas/imports';
 import { requireRole } from '$lib/server/auth/guards';
-import { db } from '$lib/server/db';
-import { withShop } from '$lib/server/db/scope';
 import { uploadLimitBytes } from '$lib/server/env';
-import { CSV_TYPES, ImportInputError, importCsv } from '$lib/server/import';
-import { listBatches } from '$lib/server/queries/imports';
+import { errorJson } from '$lib/server/http';
+import { CSV_TYPES, ImportInputError, importCsv, listImports } from '$lib/server/services/imports';
 import type { RequestHandler } from './$types';
 
 function badQuery(issues: { path: PropertyKey[]; message: string }[]): never {
@@ -17,11 +15,11 @@ export const GET: RequestHandler = async (event) => {
 	const actor = requireRole(event, 'machinist');
 	const q = importListSchema.safeParse(Object.fromEntries(event.url.searchParams));
 	if (!q.success) badQuery(q.error.issues);
-	const batches = await withShop(db, actor.shopId, (tx) => listBatches(tx, actor.shopId, { clientRef: q.data.clientRef }));
+	const batches = await listImports(actor.shopId, { clientRef: q.data.clientRef });
 	return json({ batches });
 };
 
-/** Import a CSV sent as the request body. */
+/** Import a CSV sent as the request body (or, with dryRun, check it and store nothing). */
 export const POST: RequestHandler = async (event) => {
 	const actor = requireRole(event, 'machinist');
 	const q = importQuerySchema.safeParse(Object.fromEntries(event.url.searchParams));
@@ -68,7 +66,8 @@ export const POST: RequestHandler = async (event) => {
 		};
 		return json(body, { status: outcome.status });
 	} catch (e) {
-		if (e instanceof ImportInputError) return json({ message: e.message, ...e.details }, { status: e.status });
+		// A file refused as a whole: `{ message, …details }` (the header read, say) with its status.
+		if (e instanceof ImportInputError) return errorJson(e);
 		throw e;
 	}
 };
