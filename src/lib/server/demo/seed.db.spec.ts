@@ -4,6 +4,7 @@ import { createHash, randomUUID } from 'node:crypto';
 import bcrypt from 'bcryptjs';
 import postgres from 'postgres';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { withShopSql, withSystemSql } from '../db/scope';
 import { generateDemo, type DemoData } from './generate';
 import { isDatabaseEmpty, seedDemo } from './seed';
 
@@ -16,11 +17,7 @@ describe.skipIf(!url)('seedDemo', () => {
 	let data: DemoData;
 
 	/** Runs a query looking across shops, as sign-in and set-up code does. */
-	const system = <T>(work: (tx: postgres.TransactionSql) => Promise<T>) =>
-		sql.begin(async (tx) => {
-			await tx`select set_config('lapmark.system', 'on', true)`;
-			return work(tx);
-		}) as Promise<T>;
+	const system = <T>(work: (tx: postgres.TransactionSql) => Promise<T>) => withSystemSql(sql, work);
 
 	async function countRows() {
 		const shopIds = data.shops.map((s) => s.id);
@@ -86,10 +83,7 @@ describe.skipIf(!url)('seedDemo', () => {
 
 	it('writes each shop under its own scope, so row-level security shows one shop at a time', async () => {
 		const [a, b] = data.shops;
-		const seen = await sql.begin(async (tx) => {
-			await tx`select set_config('lapmark.shop_id', ${a.id}, true)`;
-			return tx<{ shop_id: string }[]>`select distinct shop_id from readings where shop_id in ${tx([a.id, b.id])}`;
-		});
+		const seen = await withShopSql(sql, a.id, (tx) => tx<{ shop_id: string }[]>`select distinct shop_id from readings where shop_id in ${tx([a.id, b.id])}`);
 		expect(seen).toEqual([{ shop_id: a.id }]);
 	});
 

@@ -1,5 +1,6 @@
 import { sql } from 'drizzle-orm';
 import { MEASUREMENTS } from '../../measurements';
+import type { OverviewResponse } from '../../contract';
 import type { Conn } from '../db/scope';
 import { seriesKey } from '../db/series';
 
@@ -10,19 +11,8 @@ export const LIMIT_VERSIONS = sql`
 	) as effective_to
 	from limits l`;
 
-export interface OverviewFigures {
-	headsReceivedThisMonth: number;
-	headsReleasedThisMonth: number;
-	headsInWork: number;
-	readingsStored: number;
-	failingAsReceived: { side: 'intake' | 'exhaust'; positions: number; failing: number; share: number | null; ci95: { low: number | null; high: number | null } }[];
-	/** Gauges whose calibration runs out within 30 days (or has), soonest first. */
-	instrumentsDue: { id: string; name: string; serial: string; dueOn: string; daysLeft: number }[];
-	/** The latest comebacks: the new job, the original job, what failed (when recorded). */
-	latestComebacks: { headId: string; serial: string; family: string; receivedOn: string; originalHeadId: string; reason: string }[];
-	/** The latest import batches; only for roles that may see imports (machinist and up). */
-	latestImports: { id: string; fileName: string; status: string; readings: number; rejected: number; createdAt: string }[] | null;
-}
+/** The overview's answer: the contract's shape (GET /api/v1/overview). */
+export type OverviewFigures = OverviewResponse;
 
 /** Every as-received series key: the index readings_series_idx narrows on these under RLS. */
 const AS_RECEIVED_KEYS = MEASUREMENTS.flatMap((m) => [seriesKey(m, 'as_received', 'intake'), seriesKey(m, 'as_received', 'exhaust')]);
@@ -86,7 +76,7 @@ export async function failingPositions(conn: Conn, shopId: string): Promise<Fail
 			from readings r
 			left join lv on lv.family_id = r.family_id and lv.series_key = r.series_key
 				and lv.effective_from <= r.measured_at::date and (lv.effective_to is null or lv.effective_to > r.measured_at::date)
-			where r.shop_id = ${shopId} and r.series_key = any(${`{${AS_RECEIVED_KEYS.join(',')}}`}::smallint[])
+			where r.shop_id = ${shopId} and r.series_key = any(${sql.param(AS_RECEIVED_KEYS)}::smallint[])
 			group by 1, 2, 3, 4
 		)
 		select case exhaust when 1 then 'exhaust' else 'intake' end as side, count(*)::int as positions,
