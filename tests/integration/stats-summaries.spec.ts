@@ -153,7 +153,7 @@ describe('summaries stay equal to a full recomputation', () => {
 	});
 
 	it('after a bulk write as the import makes it (COPY into a staging table, one INSERT … SELECT), and its undo', async () => {
-		// The statements of src/lib/server/import/run.ts, over postgres.js as it runs them: a batch,
+		// The statements of src/lib/server/queries/import-finish.ts (called by import/run.ts), over postgres.js as it runs them: a batch,
 		// its heads, a COPY into a temporary staging table, one INSERT … SELECT into readings.
 		const lines: string[] = [];
 		for (let h = 1; h <= 3; h++) {

@@ -4,7 +4,7 @@
 // and warming the overview only reads.
 import { db, sql } from './db';
 import { env } from './env';
-import { reapDeadImports } from './import/run';
+import { reapDeadImports } from './import/batch';
 import { retryMail } from './mail';
 import { warmOverviews } from './services/overview';
 

@@ -1,5 +1,5 @@
 // Readings of one head as the inspection grid shows and writes them.
-import { and, asc, desc, eq, sql } from 'drizzle-orm';
+import { and, asc, desc, eq, sql, type Column } from 'drizzle-orm';
 import type { BoreDirection, BoreHeight, Measurement, Side, Stage } from '$lib/measurements';
 import type { Conn } from '../db/scope';
 import { boreReadings, decisions, readings } from '../db/schema';
@@ -87,16 +87,12 @@ interface Cell {
 	valve: number;
 }
 
-const cellWhere = (c: Cell, m: Measurement) =>
-	and(
-		eq(readings.shopId, c.shopId),
-		eq(readings.headId, c.headId),
-		eq(readings.stage, c.stage),
-		eq(readings.cylinder, c.cylinder),
-		eq(readings.side, c.side),
-		eq(readings.valve, c.valve),
-		eq(readings.measurement, m)
-	);
+/** The columns that place a value at one valve position of one head and stage. */
+type PositionColumns = { shopId: Column; headId: Column; stage: Column; cylinder: Column; side: Column; valve: Column };
+const atPosition = (t: PositionColumns, c: Cell) =>
+	[eq(t.shopId, c.shopId), eq(t.headId, c.headId), eq(t.stage, c.stage), eq(t.cylinder, c.cylinder), eq(t.side, c.side), eq(t.valve, c.valve)];
+
+const cellWhere = (c: Cell, m: Measurement) => and(...atPosition(readings, c), eq(readings.measurement, m));
 
 /** Every reading of one cell, newest first. */
 export async function cellReadings(conn: Conn, c: Cell, m: Measurement) {
@@ -121,12 +117,7 @@ export async function deleteCellReadings(conn: Conn, c: Cell, m: Measurement) {
 
 const boreWhere = (c: Cell, direction?: BoreDirection, height?: BoreHeight) =>
 	and(
-		eq(boreReadings.shopId, c.shopId),
-		eq(boreReadings.headId, c.headId),
-		eq(boreReadings.stage, c.stage),
-		eq(boreReadings.cylinder, c.cylinder),
-		eq(boreReadings.side, c.side),
-		eq(boreReadings.valve, c.valve),
+		...atPosition(boreReadings, c),
 		...(direction ? [eq(boreReadings.direction, direction)] : []),
 		...(height ? [eq(boreReadings.height, height)] : [])
 	);

@@ -2,7 +2,7 @@
 // the work done, the bench seal tests, the flags and the cautions. One model feeds the printable
 // page and the e-mail (plain text first, with a simple HTML part).
 import { CAUTIONS } from '$lib/cautions';
-import { MEASUREMENT_INFO, UNIT_LABEL, type Measurement } from '$lib/measurements';
+import { MEASUREMENT_INFO, MEASUREMENTS, UNIT_LABEL, type Measurement } from '$lib/measurements';
 import { posLabel, SEAL_TESTS, STAGE_LABEL } from '$lib/inspection';
 import { LEAK_PATH_LABEL, STATUS_LABEL } from '$lib/schemas/heads';
 import { inShop } from '../db';
@@ -14,16 +14,8 @@ import type { Who } from './entry';
 import { releaseBlockers, viewOrRefuse, type HeadView } from './head-view';
 
 /** The measurements the report compares, in order; the bore as its largest reading. */
-export const REPORT_MEASUREMENTS: Measurement[] = [
-	'stem_diameter',
-	'guide_bore',
-	'clearance',
-	'face_runout',
-	'seat_runout',
-	'seat_width',
-	'margin',
-	'roughness_ra'
-];
+// Every measurement of a valve position but the bench seal tests (and leak-down, per cylinder).
+export const REPORT_MEASUREMENTS: Measurement[] = MEASUREMENTS.filter((m) => !SEAL_TESTS.includes(m) && m !== 'leakdown');
 
 export interface ReportValue {
 	text: string | null;

@@ -7,6 +7,7 @@
 import { medianAbsoluteDeviation } from 'simple-statistics';
 import { assertCount } from './input';
 import {
+	emptySummary,
 	histogramSorted,
 	MAD_SCALE,
 	momentsOf,
@@ -83,21 +84,7 @@ export function robustOfSorted(sorted: readonly number[]): RobustSummary {
 export function summarizeSorted(sorted: readonly number[], moments?: Moments): FrequencySummary {
 	const m = momentsToSummary(moments ?? momentsOf(sorted));
 	const n = sorted.length;
-	if (n === 0) {
-		return {
-			n: 0,
-			mean: null,
-			sd: null,
-			min: null,
-			max: null,
-			quantiles: { p05: null, p25: null, p50: null, p75: null, p95: null },
-			iqr: null,
-			mad: null,
-			madScaled: null,
-			fences: { low: null, high: null },
-			histogram: []
-		};
-	}
+	if (n === 0) return emptySummary();
 	if (m.n !== n) throw new RangeError(`moments count ${m.n} does not match the series length ${n}`);
 	const q = (p: number) => quantileType7(sorted, p) as number;
 	const quantiles = { p05: q(0.05), p25: q(0.25), p50: q(0.5), p75: q(0.75), p95: q(0.95) };

@@ -260,27 +260,29 @@ export function histogramSorted(sorted: readonly number[]): HistogramBin[] {
 
 const EMPTY_QUANTILES: Quantiles = { p05: null, p25: null, p50: null, p75: null, p95: null };
 
+/** The summary of no readings: every figure null, no histogram (describe adds its r(1)). */
+export function emptySummary(): Omit<Summary, 'lag1Autocorrelation'> {
+	return {
+		n: 0,
+		mean: null,
+		sd: null,
+		min: null,
+		max: null,
+		quantiles: { ...EMPTY_QUANTILES },
+		iqr: null,
+		mad: null,
+		madScaled: null,
+		fences: { low: null, high: null },
+		histogram: []
+	};
+}
+
 /** Full descriptive summary of one series; `values` in time order (for r(1)). */
 export function describe(values: Values): Summary {
 	const data = finiteArray(values);
 	const m = momentsOf(data);
 	const s = momentsToSummary(m);
-	if (data.length === 0) {
-		return {
-			n: 0,
-			mean: null,
-			sd: null,
-			min: null,
-			max: null,
-			quantiles: { ...EMPTY_QUANTILES },
-			iqr: null,
-			mad: null,
-			madScaled: null,
-			fences: { low: null, high: null },
-			histogram: [],
-			lag1Autocorrelation: null
-		};
-	}
+	if (data.length === 0) return { ...emptySummary(), lag1Autocorrelation: null };
 	const sorted = [...data].sort((a, b) => a - b);
 	const q = (p: number) => quantileType7(sorted, p) as number;
 	const quantiles: Quantiles = { p05: q(0.05), p25: q(0.25), p50: q(0.5), p75: q(0.75), p95: q(0.95) };
