@@ -18,6 +18,11 @@ export class DomainError extends Error {
 		super(message);
 		this.name = 'DomainError';
 	}
+
+	/** The answer's body, as SvelteKit's HttpError has it (`{ message }`). */
+	get body(): { message: string } {
+		return { message: this.message };
+	}
 }
 
 export const isDomainError = (e: unknown): e is DomainError => e instanceof DomainError;

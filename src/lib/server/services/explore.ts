@@ -1,17 +1,13 @@
 // The explore page's readings table: one page of the readings a URL's filters select, sorted as
 // it asks, and the counts per measurement and stage beside it.
-import { isHttpError } from '@sveltejs/kit';
 import type { ReadingsQuery } from '$lib/schemas/readings';
 import { inShop } from '../db';
 import { isDomainError } from '../errors';
 import { countsOf, readingSelection, readingsPageOf } from './readings';
 
-/** A refusal (a DomainError, or the error() of a service that still throws SvelteKit's) as its
- * status and message; null for anything else. */
+/** A refusal (a DomainError) as its status and message; null for anything else. */
 export function refusalOf(e: unknown): { status: number; message: string } | null {
-	if (isDomainError(e)) return { status: e.status, message: e.message };
-	if (isHttpError(e)) return { status: e.status, message: e.body.message };
-	return null;
+	return isDomainError(e) ? { status: e.status, message: e.message } : null;
 }
 
 /** The table and counts; a family that is gone (an old bookmark) is said in `problem` rather

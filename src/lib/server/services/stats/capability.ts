@@ -1,10 +1,10 @@
 // Process capability (Cp, Cpk from moving ranges; Pp, Ppk overall) of final readings against
 // the final limits in force.
-import { error } from '@sveltejs/kit';
 import type { CapabilityResponse } from '../../../contract';
 import { MEASUREMENT_INFO } from '../../../measurements';
 import type { CapabilityQuery } from '../../../schemas/stats';
 import { today } from '../../../domain/days';
+import { unprocessable } from '../../errors';
 import type { Conn } from '../../db/scope';
 import { seriesKey } from '../../db/series';
 import { readingsInTimeOrder, type FamilyRef } from '../../queries/stats';
@@ -22,7 +22,7 @@ export async function capabilityStudy(conn: Conn, shopId: string, q: CapabilityQ
 	]);
 	const limit = limits.get(limitKey(fam.id, key)) ?? null;
 	if (limit && limit.min !== null && limit.max !== null && !(limit.min < limit.max)) {
-		error(422, `The final limits ${limit.min}–${limit.max} leave no tolerance, so capability cannot be computed.`);
+		throw unprocessable(`The final limits ${limit.min}–${limit.max} leave no tolerance, so capability cannot be computed.`);
 	}
 	const c = capabilityOf(
 		rows.map((r) => r.value),

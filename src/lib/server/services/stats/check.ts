@@ -1,9 +1,9 @@
 // One reading against its family's limits and fleet, with the decision it suggests.
-import { error } from '@sveltejs/kit';
 import type { CheckResponse } from '../../../contract';
 import { MEASUREMENT_INFO, toCanonical, unitFits } from '../../../measurements';
 import type { CheckQuery } from '../../../schemas/stats';
 import { today } from '../../../domain/days';
+import { invalid } from '../../errors';
 import type { Conn } from '../../db/scope';
 import { seriesKey } from '../../db/series';
 import { groupData, type FamilyRef } from '../../queries/stats';
@@ -15,10 +15,10 @@ export async function checkReading(conn: Conn, shopId: string, q: CheckQuery): P
 	const info = MEASUREMENT_INFO[q.measurement];
 	const unit = q.unit ?? info.unit;
 	if (!unitFits(q.measurement, unit)) {
-		error(400, `unit ${unit} does not fit ${q.measurement}; use ${info.units.join(' or ')}`);
+		throw invalid(`unit ${unit} does not fit ${q.measurement}; use ${info.units.join(' or ')}`);
 	}
 	const value = toCanonical(q.value, unit);
-	if (value > info.max) error(400, `value ${value} ${info.unit} is beyond any plausible ${info.label.toLowerCase()} (at most ${info.max})`);
+	if (value > info.max) throw invalid(`value ${value} ${info.unit} is beyond any plausible ${info.label.toLowerCase()} (at most ${info.max})`);
 	const { family } = await resolveFamily(conn, shopId, q.family);
 	const fam = family as FamilyRef;
 	const key = seriesKey(q.measurement, q.stage, q.side);

@@ -1,8 +1,8 @@
 // What every statistics answer starts from: the family a request names (404 when the shop has
 // none of that code), the selection it makes, the limits in force and the filters echoed back.
-import { error } from '@sveltejs/kit';
 import type { EchoFilters, FamilyLabel, LimitInfo } from '../../../contract';
 import type { StatsFilters } from '../../../schemas/stats';
+import { notFound } from '../../errors';
 import type { Conn } from '../../db/scope';
 import { limitsOn, shopFamilies, type DecisionSelection, type FamilyRef, type LimitRow, type Selection } from '../../queries/stats';
 
@@ -36,7 +36,7 @@ export async function resolveFamily(conn: Conn, shopId: string, code: string | u
 	const family = families.find((f) => f.code === code) ?? (alike.length === 1 ? alike[0] : null);
 	if (!family) {
 		const known = families.map((f) => f.code).join(', ');
-		error(404, `No engine family "${code}" in this shop.${known ? ` Families: ${known}.` : ' The shop has no families yet.'}`);
+		throw notFound(`No engine family "${code}" in this shop.${known ? ` Families: ${known}.` : ' The shop has no families yet.'}`);
 	}
 	return { families, byId, family };
 }

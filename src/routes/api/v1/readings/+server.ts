@@ -1,7 +1,7 @@
 import { json } from '@sveltejs/kit';
 import { readingsQuerySchema } from '$lib/schemas/readings';
 import { requireRole } from '$lib/server/auth/guards';
-import { parseQuery } from '$lib/server/http';
+import { orError, parseQuery } from '$lib/server/http';
 import { readingsExport, readingsPageFor } from '$lib/server/services/readings';
 import type { RequestHandler } from './$types';
 
@@ -12,8 +12,8 @@ import type { RequestHandler } from './$types';
 export const GET: RequestHandler = async (event) => {
 	const actor = requireRole(event, 'engineer');
 	const q = parseQuery(readingsQuerySchema, event.url);
-	if (q.page !== undefined) return json(await readingsPageFor(actor.shopId, q));
-	const { body, format, fileName } = await readingsExport(actor.shopId, q);
+	if (q.page !== undefined) return json(await orError(() => readingsPageFor(actor.shopId, q)));
+	const { body, format, fileName } = await orError(() => readingsExport(actor.shopId, q));
 	return new Response(body, {
 		headers: {
 			'content-type': format === 'csv' ? 'text/csv; charset=utf-8' : 'application/json; charset=utf-8',

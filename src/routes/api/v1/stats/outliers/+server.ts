@@ -1,7 +1,7 @@
 import { json } from '@sveltejs/kit';
 import { outliersQuerySchema } from '$lib/schemas/stats';
 import { requireRole } from '$lib/server/auth/guards';
-import { parseQuery } from '$lib/server/http';
+import { orError, parseQuery } from '$lib/server/http';
 import { outliersFor } from '$lib/server/services/stats/for-shop';
 import type { RequestHandler } from './$types';
 
@@ -9,5 +9,5 @@ import type { RequestHandler } from './$types';
 export const GET: RequestHandler = async (event) => {
 	const actor = requireRole(event, 'viewer');
 	const q = parseQuery(outliersQuerySchema, event.url);
-	return json(await outliersFor(actor.shopId, q));
+	return json(await orError(() => outliersFor(actor.shopId, q)));
 };
