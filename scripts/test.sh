@@ -57,7 +57,8 @@ STATUS=$?
 
 # The types of every .ts and .svelte file (svelte-check), counted as one more test.
 log "svelte-check (npm run check)"
-if npm run --silent check; then CHECK_FAILED=0; else CHECK_FAILED=1; STATUS=1; fi
+# Without colours, on stderr with the other logs, so nothing but the closing line ends stdout.
+if npm run --silent check -- --no-color >&2; then CHECK_FAILED=0; else CHECK_FAILED=1; STATUS=1; fi
 
 if [ -s "$RESULTS" ]; then
 	# Failed tests, plus files that failed without a failing test (an import error, say).
