@@ -1,4 +1,4 @@
-// The shop's gauges as the instruments page lists and changes them: registering one, recording a
+// The shop's gauges as the instruments page lists and changes them: registering one, entering a
 // calibration, retiring and bringing back. Each change is audited in its own transaction.
 import { inShop } from '../db';
 import { conflict, notFound } from '../errors';

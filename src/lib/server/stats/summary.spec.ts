@@ -264,7 +264,7 @@ group('histogram (Freedman–Diaconis, clamped to 5…60 bins)', () => {
 		expect(bins.map((b) => b.count)).toEqual([2, 2, 2, 2, 2]);
 	});
 	it('IQR 0 with a non-zero range uses the maximum of 60 bins', () => {
-		// Clamp rule from the product brief; h = 0 makes ⌈range/h⌉ infinite
+		// Our clamp rule (common practice, no published source): h = 0 makes ⌈range/h⌉ infinite
 		const bins = histogramSorted([0, 0, 0, 0, 0, 0, 0, 0, 0, 1]);
 		expect(bins.length).toBe(60);
 		expect(bins[0].count).toBe(9);
