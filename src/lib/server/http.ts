@@ -81,13 +81,3 @@ export function errorJson(e: DomainError, headers?: HeadersInit): Response {
 	if (Object.keys(e.fields).length) body.errors = e.fields;
 	return json(body, { status: e.status, headers });
 }
-
-/** Runs an API handler's `work`; a DomainError becomes errorJson. */
-export async function orErrorJson(work: () => Promise<Response>): Promise<Response> {
-	try {
-		return await work();
-	} catch (e) {
-		if (isDomainError(e)) return errorJson(e);
-		throw e;
-	}
-}

@@ -54,15 +54,11 @@ export async function withSystemSql<T>(sql: postgres.Sql, work: (t: ScopedSql) =
 }
 
 /**
- * Moves an open transaction into `shopId`'s scope (or, with 'system', across shops): for the
- * one transaction that writes several shops in turn (seeding the demo). Awaited, so the scope is
- * in force before the caller's next statement.
+ * Moves an open transaction into `shopId`'s scope: for the one transaction that writes several
+ * shops in turn (seeding the demo). Awaited, so the scope is in force before the caller's next
+ * statement.
  */
-export async function enterScope(t: ScopedSql, shopId: string | 'system'): Promise<void> {
-	if (shopId === 'system') {
-		await t`select set_config('lapmark.shop_id', '', true), set_config('lapmark.system', 'on', true)`;
-		return;
-	}
+export async function enterScope(t: ScopedSql, shopId: string): Promise<void> {
 	checkShopId(shopId);
 	await t`select set_config('lapmark.system', '', true), set_config('lapmark.shop_id', ${shopId}, true)`;
 }
