@@ -74,20 +74,28 @@ export interface MeasurementInfo {
 	max: number;
 	/** Decimals to show in the canonical unit. */
 	decimals: number;
+	/**
+	 * Bounds the quantity cannot pass whatever the process does (canonical unit): every reading
+	 * here is a size, a total indicated runout, a roughness, a time or a share, so none is below 0,
+	 * and a share (hold, leakage) is at most 100 %. null: no physical upper bound. Statistics that
+	 * could pass them (control limits, usual ranges) are clipped to them; capability treats a
+	 * series with a bound as bounded data.
+	 */
+	bounds: { min: number; max: number | null };
 }
 
 export const MEASUREMENT_INFO: Record<Measurement, MeasurementInfo> = {
-	stem_diameter: { key: 'stem_diameter', label: 'Stem diameter', unit: 'mm', units: ['mm', 'in'], max: 30, decimals: 3 },
-	guide_bore: { key: 'guide_bore', label: 'Guide bore', unit: 'mm', units: ['mm', 'in'], max: 30, decimals: 3 },
-	clearance: { key: 'clearance', label: 'Stem-to-guide clearance', unit: 'mm', units: ['mm', 'in'], max: 1, decimals: 3 },
-	face_runout: { key: 'face_runout', label: 'Valve face runout (TIR)', unit: 'mm', units: ['mm', 'in'], max: 2, decimals: 3 },
-	seat_runout: { key: 'seat_runout', label: 'Seat runout (TIR)', unit: 'mm', units: ['mm', 'in'], max: 2, decimals: 3 },
-	seat_width: { key: 'seat_width', label: 'Seat width', unit: 'mm', units: ['mm', 'in'], max: 10, decimals: 2 },
-	margin: { key: 'margin', label: 'Valve margin', unit: 'mm', units: ['mm', 'in'], max: 10, decimals: 2 },
-	roughness_ra: { key: 'roughness_ra', label: 'Surface roughness Ra', unit: 'um', units: ['um', 'uin'], max: 50, decimals: 2 },
-	vacuum_hold: { key: 'vacuum_hold', label: 'Vacuum hold', unit: 'pct', units: ['pct'], max: 100, decimals: 1 },
-	fluid_hold: { key: 'fluid_hold', label: 'Fluid hold', unit: 's', units: ['s'], max: 3600, decimals: 0 },
-	leakdown: { key: 'leakdown', label: 'Cylinder leakage', unit: 'pct', units: ['pct'], max: 100, decimals: 1 }
+	stem_diameter: { key: 'stem_diameter', label: 'Stem diameter', unit: 'mm', units: ['mm', 'in'], max: 30, decimals: 3, bounds: { min: 0, max: null } },
+	guide_bore: { key: 'guide_bore', label: 'Guide bore', unit: 'mm', units: ['mm', 'in'], max: 30, decimals: 3, bounds: { min: 0, max: null } },
+	clearance: { key: 'clearance', label: 'Stem-to-guide clearance', unit: 'mm', units: ['mm', 'in'], max: 1, decimals: 3, bounds: { min: 0, max: null } },
+	face_runout: { key: 'face_runout', label: 'Valve face runout (TIR)', unit: 'mm', units: ['mm', 'in'], max: 2, decimals: 3, bounds: { min: 0, max: null } },
+	seat_runout: { key: 'seat_runout', label: 'Seat runout (TIR)', unit: 'mm', units: ['mm', 'in'], max: 2, decimals: 3, bounds: { min: 0, max: null } },
+	seat_width: { key: 'seat_width', label: 'Seat width', unit: 'mm', units: ['mm', 'in'], max: 10, decimals: 2, bounds: { min: 0, max: null } },
+	margin: { key: 'margin', label: 'Valve margin', unit: 'mm', units: ['mm', 'in'], max: 10, decimals: 2, bounds: { min: 0, max: null } },
+	roughness_ra: { key: 'roughness_ra', label: 'Surface roughness Ra', unit: 'um', units: ['um', 'uin'], max: 50, decimals: 2, bounds: { min: 0, max: null } },
+	vacuum_hold: { key: 'vacuum_hold', label: 'Vacuum hold', unit: 'pct', units: ['pct'], max: 100, decimals: 1, bounds: { min: 0, max: 100 } },
+	fluid_hold: { key: 'fluid_hold', label: 'Fluid hold', unit: 's', units: ['s'], max: 3600, decimals: 0, bounds: { min: 0, max: null } },
+	leakdown: { key: 'leakdown', label: 'Cylinder leakage', unit: 'pct', units: ['pct'], max: 100, decimals: 1, bounds: { min: 0, max: 100 } }
 };
 
 export const UNIT_LABEL: Record<Unit, string> = { mm: 'mm', in: 'in', um: 'µm', uin: 'µin', pct: '%', s: 's' };

@@ -53,7 +53,6 @@ export {
 	capabilityIndices,
 	capabilityVerdict,
 	CONTROL_CHART_CONSTANTS,
-	controlChart,
 	D2_MR,
 	D4_MR,
 	E2_MR,
@@ -62,11 +61,9 @@ export {
 	type CapabilityLevel,
 	type CapabilityResult,
 	type CapabilityVerdict,
-	type ChartPoint,
-	type ControlChart,
-	type ControlPoint,
 	type SpecLimits
 } from './capability';
+export { controlChart, type ChartPoint, type ControlChart, type ControlPoint } from './control';
 export { linearFit, type BandPoint, type LinearFit } from './regression';
 export {
 	countBeyond,
