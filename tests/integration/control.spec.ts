@@ -2,13 +2,14 @@
 // charted, a recomputed baseline stored and audited, another shop kept out of both, and the
 // monthly tallies of the p-chart judged by the limits of each reading's day (counted by hand).
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { withShop } from '../../src/lib/server/db/scope';
-import { auditLog, controlBaselines, heads, limits, readings } from '../../src/lib/server/db/schema';
+import { withShop, withSystem } from '../../src/lib/server/db/scope';
+import { auditLog, controlBaselines, heads, limits, readings, users } from '../../src/lib/server/db/schema';
 import { seriesKey } from '../../src/lib/server/db/series';
 import { monthlyPositionTallies } from '../../src/lib/server/queries/stats';
 import { control, pchart, recomputeBaseline } from '../../src/lib/server/services/stats';
 import { isDomainError } from '../../src/lib/server/errors';
 import { makeShop, pgError, raw, testDb } from '../helpers/db';
+import { uniqueEmail } from '../helpers/people';
 
 const { db, sql } = testDb();
 let shopA: string;
@@ -20,7 +21,7 @@ let headA: string;
 type Tx = Parameters<Parameters<typeof withShop>[2]>[0];
 const inA = <T>(work: (t: Tx) => Promise<T>) => withShop(db, shopA, work);
 const inB = <T>(work: (t: Tx) => Promise<T>) => withShop(db, shopB, work);
-const who = { userId: null, label: 'eng@test.example', name: 'Eve Engineer' };
+const who = { userId: '', label: '', name: 'Eve Engineer' };
 
 /** 1,200 final intake clearances of one position, one an hour from 2025-01-01 00:00 UTC: 0.040 + 0.001·(7i mod 13). */
 const N = 1200;
@@ -32,6 +33,9 @@ beforeAll(async () => {
 	const a = await makeShop(db, 'control-a');
 	const b = await makeShop(db, 'control-b');
 	[shopA, famA, shopB, famB] = [a.shop.id, a.family.id, b.shop.id, b.family.id];
+	who.label = uniqueEmail('control-engineer');
+	const [u] = await withSystem(db, (t) => t.insert(users).values({ email: who.label }).returning());
+	who.userId = u.id;
 	await inA(async (t) => {
 		const [h] = await t.insert(heads).values({ shopId: shopA, familyId: famA, serial: 'C-1', receivedOn: '2024-12-30' }).returning();
 		headA = h.id;
@@ -100,7 +104,7 @@ describe('recompute from … to …', () => {
 		expect(c.centre).toBe(b.centre);
 		const audits = await inA((t) => t.select().from(auditLog).where(raw`${auditLog.entity} = 'control_baseline'`));
 		expect(audits).toHaveLength(1);
-		expect(audits[0]).toMatchObject({ action: 'create', actorLabel: 'eng@test.example', entityId: (await inA((t) => t.select().from(controlBaselines)))[0].id });
+		expect(audits[0]).toMatchObject({ action: 'create', actorLabel: who.label, entityId: (await inA((t) => t.select().from(controlBaselines)))[0].id });
 		expect(audits[0].after).toMatchObject({ family: 'TEST-4', measurement: 'clearance', stage: 'final', side: 'intake', from: '2025-01-10', to: '2025-01-11', n: 48 });
 
 		// Again with another period: the one row is replaced, the audit row says what it was.

@@ -5,7 +5,7 @@ import { requireRole } from '$lib/server/auth/guards';
 import { orFail } from '$lib/server/http';
 import { whoIs } from '$lib/server/params';
 import { familiesFor } from '$lib/server/services/analysis';
-import { recomputeBaselineFor } from '$lib/server/services/stats/control';
+import { recomputeBaselineFor } from '$lib/server/services/stats/for-shop';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {

@@ -8,7 +8,6 @@ import { RULES, WESTERN_ELECTRIC, type RuleId } from '../../../domain/control-ru
 import { MEASUREMENT_INFO } from '../../../measurements';
 import type { BaselineForm, ControlQuery, PChartQuery } from '../../../schemas/stats';
 import { today } from '../../../domain/days';
-import { inShop } from '../../db';
 import type { Conn } from '../../db/scope';
 import { seriesKey, seriesKeys } from '../../db/series';
 import { unprocessable } from '../../errors';
@@ -185,7 +184,3 @@ export async function recomputeBaseline(conn: Conn, shopId: string, who: Who, f:
 	});
 	return (await baselineFor(conn, shopId, s)) as BaselineOut;
 }
-
-/** The route's entry: recompute in the shop's scope. */
-export const recomputeBaselineFor = (shopId: string, who: Who, f: BaselineForm): Promise<BaselineOut> =>
-	inShop(shopId, (tx) => recomputeBaseline(tx, shopId, who, f));
