@@ -89,7 +89,7 @@ const PARAMETER_TEXT: Record<string, string> = {
 	sort: 'Sort key; a leading minus sorts descending.',
 	check: `What counts as a failure: a measurement key (a reading outside the limits of its day; seal tests included), or decision:<kind> with kind one of ${DECISION_KINDS.join(', ')}.`,
 	limit: 'How many of the most recent readings to chart (the control limits do not depend on it: they come from the baseline).',
-	rules: 'Run rules to test, comma-separated: we1–we4 (Western Electric), n1–n8 (Nelson), or the sets we, nelson, all. Default we.',
+	rules: 'Run rules to test, comma-separated: we1–we4 (Western Electric), n1–n8 (Nelson), or the sets we, nelson, all (none: no rule). Default we.',
 	format: 'csv or json (default json). Leave out `page` to export every row.',
 	layout: 'wide (one column per measurement) or long (one row per reading); guessed from the header when left out.',
 	dryRun: 'Check the file without storing anything (1 or true).',
