@@ -32,7 +32,8 @@ import { seriesKey } from '../src/lib/server/db/series';
 import { demoSignIns } from '../src/lib/server/demo/generate';
 import { createDb } from '../src/lib/server/db/client';
 import { withShop } from '../src/lib/server/db/scope';
-import { checkReading, compare, distribution, rates } from '../src/lib/server/services/stats';
+import { RULE_IDS } from '../src/lib/domain/control-rules';
+import { checkReading, compare, control, distribution, pchart, rates } from '../src/lib/server/services/stats';
 import { seedScaled } from './seed';
 
 const url = process.env.BENCH_DATABASE_URL;
@@ -123,6 +124,8 @@ const [ids] = await system(
 );
 const keyAR = (side: 'intake' | 'exhaust') => seriesKey('clearance', 'as_received', side);
 const lit = (s: string) => `'${s}'`;
+const keyFinal = seriesKey('clearance', 'final', 'exhaust');
+const finalEnum = `r.measurement = 'clearance' and r.stage = 'final' and r.side = 'exhaust'`;
 const enumSeries = (side: string) => `measurement = 'clearance' and stage = 'as_received' and side = '${side}'`;
 
 /** The bare SQL of each route's aggregate, with the series given as `where` text. */
@@ -175,6 +178,30 @@ const bare = {
 		)
 		select family_id, s, cylinder, count(*) as n, count(*) filter (where failed) as failures from pos group by 1, 2, 3`;
 	},
+	// The control chart: the 1,000 most recent readings with their heads, and the baseline (none
+	// is stored in the bench: the first 100 readings of the series).
+	control: (series: string) => `
+		with w as (select r.id, r.value, r.measured_at, h.serial, r.measured_by, count(*) over () as total
+			from readings r join heads h on h.id = r.head_id
+			where r.shop_id = ${lit(ids.shop)} and r.family_id = ${lit(ids.family)} and ${series}
+			order by r.measured_at desc, r.id desc limit 1000),
+		b as (select r.value from readings r where r.shop_id = ${lit(ids.shop)} and r.family_id = ${lit(ids.family)} and ${series}
+			order by r.measured_at, r.id limit 100)
+		select (select avg(value) from b) as centre, w.* from w`,
+	// The p-chart: valve positions judged by the limit version of each reading's day, per month.
+	pchart: (series: string) => `
+		with lv as (select l.*, lead(l.effective_from) over (partition by l.family_id, l.measurement, l.side, l.stage order by l.effective_from) as effective_to from limits l),
+		pos as (
+			select r.family_id, lapmark_month(min(r.measured_at)) as month,
+				bool_or(r.value < coalesce(lv.min, '-Infinity') or r.value > coalesce(lv.max, 'Infinity')) as failed
+			from readings r
+			join lv on lv.family_id = r.family_id and lapmark_series(lv.measurement, lv.stage, lv.side) = r.series_key
+				and lv.effective_from <= (r.measured_at at time zone 'UTC')::date
+				and (lv.effective_to is null or lv.effective_to > (r.measured_at at time zone 'UTC')::date)
+			where r.shop_id = ${lit(ids.shop)} and r.family_id = ${lit(ids.family)} and ${series}
+			group by r.head_id, r.family_id, r.series_key, r.cylinder, r.valve
+		)
+		select family_id, month, count(*) as n, count(*) filter (where failed) as failures from pos group by 1, 2 order by 1, 2`,
 	check: (series: string) => `
 		with r as (select value from readings where shop_id = ${lit(ids.shop)} and family_id = ${lit(ids.family)} and ${series}),
 		s as (select count(*) as n, count(*) filter (where value < 0.13) as below, count(*) filter (where value = 0.13) as equal,
@@ -253,13 +280,17 @@ const byKey = {
 	distribution: `series_key = ${keyAR('exhaust')}`,
 	compare: `series_key = ${keyAR('exhaust')}`,
 	rates: `r.series_key in (${keyAR('intake')}, ${keyAR('exhaust')})`,
-	check: `series_key = ${keyAR('exhaust')}`
+	check: `series_key = ${keyAR('exhaust')}`,
+	control: `r.series_key = ${keyFinal}`,
+	pchart: `r.series_key = ${keyFinal}`
 };
 const byEnum = {
 	distribution: enumSeries('exhaust'),
 	compare: enumSeries('exhaust'),
 	rates: `r.measurement = 'clearance' and r.stage = 'as_received'`,
-	check: enumSeries('exhaust')
+	check: enumSeries('exhaust'),
+	control: finalEnum,
+	pchart: finalEnum
 };
 
 // The summary SQL must give the raw SQL's figures (a check of the hand-written SQL above, and
@@ -292,15 +323,18 @@ for (const name of ['distribution', 'compare', 'check'] as const) {
 }
 const [selected] = (await asShop(`
 	select count(*) filter (where family_id = ${lit(ids.family)} and series_key = ${keyAR('exhaust')})::int as distribution,
-		count(*) filter (where series_key = ${keyAR('exhaust')})::int as compare, count(*)::int as rates
-	from readings r where r.shop_id = ${lit(ids.shop)} and ${byKey.rates}`)) as { distribution: number; compare: number; rates: number }[];
+		count(*) filter (where series_key = ${keyAR('exhaust')})::int as compare, count(*) filter (where ${byKey.rates})::int as rates,
+		count(*) filter (where family_id = ${lit(ids.family)} and series_key = ${keyFinal})::int as final
+	from readings r where r.shop_id = ${lit(ids.shop)}`)) as { distribution: number; compare: number; rates: number; final: number }[];
 log(`summary SQL agrees with raw SQL for distribution, compare and check`);
 
 const routes = {
 	distribution: '/api/v1/stats/distribution?measurement=clearance&family=ALDER-4&side=exhaust&stage=as_received',
 	compare: '/api/v1/stats/compare?measurement=clearance&side=exhaust&stage=as_received',
 	rates: '/api/v1/stats/rates?check=clearance',
-	check: '/api/v1/check?family=ALDER-4&side=exhaust&measurement=clearance&value=0.13'
+	check: '/api/v1/check?family=ALDER-4&side=exhaust&measurement=clearance&value=0.13',
+	control: '/api/v1/stats/control?family=ALDER-4&side=exhaust&measurement=clearance&stage=final&limit=1000&rules=all',
+	pchart: '/api/v1/stats/pchart?family=ALDER-4&side=exhaust&measurement=clearance&stage=final'
 } as const;
 type Route = keyof typeof routes;
 
@@ -372,7 +406,9 @@ try {
 		distribution: () => withShop(app.db, ids.shop, (t) => distribution(t, ids.shop, { measurement: 'clearance', family: 'ALDER-4', side: 'exhaust', stage: 'as_received' })),
 		compare: () => withShop(app.db, ids.shop, (t) => compare(t, ids.shop, { measurement: 'clearance', side: 'exhaust', stage: 'as_received' })),
 		rates: () => withShop(app.db, ids.shop, (t) => rates(t, ids.shop, { check: { kind: 'measurement', measurement: 'clearance' } })),
-		check: () => withShop(app.db, ids.shop, (t) => checkReading(t, ids.shop, { family: 'ALDER-4', side: 'exhaust', stage: 'as_received', measurement: 'clearance', value: 0.13 }))
+		check: () => withShop(app.db, ids.shop, (t) => checkReading(t, ids.shop, { family: 'ALDER-4', side: 'exhaust', stage: 'as_received', measurement: 'clearance', value: 0.13 })),
+		control: () => withShop(app.db, ids.shop, (t) => control(t, ids.shop, { family: 'ALDER-4', side: 'exhaust', stage: 'final', measurement: 'clearance', limit: 1000, rules: [...RULE_IDS] })),
+		pchart: () => withShop(app.db, ids.shop, (t) => pchart(t, ids.shop, { family: 'ALDER-4', side: 'exhaust', stage: 'final', measurement: 'clearance' }))
 	};
 	const inProcess = async (f: () => Promise<unknown>) => {
 		for (let i = 0; i < 3; i++) await f();
@@ -398,7 +434,7 @@ try {
 			const n = Math.floor(runs / blocks) + (b < runs % blocks ? 1 : 0);
 			t.http.push(...(await httpTimes(routes[name], n)));
 			t.sql.push(...psqlTimes(bare[name](byKey[name]), { runs: n }));
-			if (name !== 'rates') t.summary.push(...psqlTimes(summaryBare[name], { runs: n }));
+			if (name in summaryBare) t.summary.push(...psqlTimes(summaryBare[name as keyof typeof summaryBare], { runs: n }));
 		}
 		const ms = median(t.http);
 		const sqlMs = median(t.sql);
@@ -432,10 +468,10 @@ try {
 	console.log('is what the routes read; "summary ratio" is HTTP / summary SQL (rates keep no summaries). "enum columns" filters');
 	console.log('measurement/stage/side, which row-level security keeps out of any index scan. In-process: the service on a direct');
 	console.log('connection, no HTTP and no token.');
-	console.log(`selections: distribution and check ${selected.distribution.toLocaleString('en-US')} readings (one family × series), compare ${selected.compare.toLocaleString('en-US')} (every family, one series), rates ${selected.rates.toLocaleString('en-US')} (every family, two series)`);
+	console.log(`selections: distribution and check ${selected.distribution.toLocaleString('en-US')} readings (one family × series), control and pchart ${selected.final.toLocaleString('en-US')} (ALDER-4 final exhaust clearance; control charts the latest 1,000), compare ${selected.compare.toLocaleString('en-US')} (every family, one series), rates ${selected.rates.toLocaleString('en-US')} (every family, two series)`);
 	if (wholeTableMs !== null) console.log(`for scale: that raw aggregate over all ${readings.toLocaleString('en-US')} readings, per shop × family × series: ${wholeTableMs} ms (median of 3)`);
 	console.log(`(GET /api/v1/me, the token check alone: ${floorMs} ms)`);
-	console.log(`targets: distribution, compare, rates under 300 ms and within 1.5× of raw SQL; check under 20 ms`);
+	console.log(`targets: distribution, compare, rates, control, pchart under 300 ms and within 1.5× of raw SQL; check under 20 ms`);
 
 	// ------------------------------------------------------------------------------------------
 	// 5. What the triggers cost

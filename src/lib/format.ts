@@ -72,3 +72,16 @@ export function pValueWords(p: number | null): string {
 }
 
 export const TEST_NAME = { fisher: 'Fisher’s exact test (two-sided)', chi_square: 'Pearson’s chi-square test (1 degree of freedom)' } as const;
+
+const SHORT_DAY = new Intl.DateTimeFormat('en-GB', { day: 'numeric', month: 'short', year: '2-digit', timeZone: 'UTC' });
+const MONTH = new Intl.DateTimeFormat('en-GB', { month: 'short', year: 'numeric', timeZone: 'UTC' });
+
+/** A day on a time axis, e.g. "3 Mar 26" (UTC). */
+export function fmtAxisDay(d: Date | number): string {
+	return SHORT_DAY.format(d);
+}
+
+/** A month "2026-03" (or a date in it) as "Mar 2026". */
+export function fmtMonth(m: string | Date | number): string {
+	return MONTH.format(typeof m === 'string' ? new Date(`${m.slice(0, 7)}-01T00:00:00Z`) : m);
+}

@@ -2,7 +2,7 @@
 // helper that builds their URLs. The shapes are the contract's ($lib/contract, zod schemas that
 // also generate the OpenAPI document); every number that is undefined for the data (an SD of one
 // reading, a rate of zero positions) is null, never NaN.
-import type { CheckResponse, ComebacksResponse, CompareResponse, ControlResponse, DistributionResponse, OutliersResponse, RatesResponse, CapabilityResponse, WearResponse } from '../contract';
+import type { CheckResponse, ComebacksResponse, CompareResponse, ControlResponse, PChartResponse, DistributionResponse, OutliersResponse, RatesResponse, CapabilityResponse, WearResponse } from '../contract';
 import { getJson } from './client';
 
 export type {
@@ -11,7 +11,9 @@ export type {
 	ComebacksResponse,
 	CompareResponse,
 	ControlPointOut,
+	ControlBaseline,
 	ControlResponse,
+	PChartResponse,
 	DataSource,
 	DescribeResponse,
 	DistributionResponse,
@@ -48,4 +50,5 @@ export const getRates = (p: Params, f?: typeof fetch) => getJson<RatesResponse>(
 export const getComebacks = (p: Params, f?: typeof fetch) => getJson<ComebacksResponse>(statsUrl('stats/comebacks', p), f);
 export const getCapability = (p: Params, f?: typeof fetch) => getJson<CapabilityResponse>(statsUrl('stats/capability', p), f);
 export const getControl = (p: Params, f?: typeof fetch) => getJson<ControlResponse>(statsUrl('stats/control', p), f);
+export const getPChart = (p: Params, f?: typeof fetch) => getJson<PChartResponse>(statsUrl('stats/pchart', p), f);
 export const getWear = (p: Params, f?: typeof fetch) => getJson<WearResponse>(statsUrl('stats/wear', p), f);

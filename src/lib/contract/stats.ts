@@ -2,6 +2,7 @@
 // undefined for the data (an SD of one reading, a rate of zero positions) is null, never NaN.
 import { z } from 'zod';
 import { DECISION_KINDS } from '../measurements';
+import { RULE_IDS } from '../domain/control-rules';
 import { OUTLIER_SORTS } from '../schemas/stats';
 import {
 	canonicalUnit,
@@ -213,11 +214,67 @@ export const CapabilityResponse = named(
 );
 export type CapabilityResponse = z.output<typeof CapabilityResponse>;
 
+const ruleId = z.enum(RULE_IDS);
+
 export const ControlPoint = named(
 	'ControlPoint',
-	z.strictObject({ id: z.int(), t: instant, value: z.number(), mr: maybe, serial: z.string(), measuredBy: z.string(), beyond: z.boolean(), mrBeyond: z.boolean() })
+	z.strictObject({
+		id: z.int(),
+		t: instant,
+		value: z.number(),
+		mr: maybe,
+		serial: z.string(),
+		measuredBy: z.string(),
+		beyond: z.boolean(),
+		mrBeyond: z.boolean(),
+		rules: z.array(ruleId).meta({ description: 'The selected run rules whose pattern this point completes.' })
+	})
 );
 export type ControlPointOut = z.output<typeof ControlPoint>;
+
+export const ControlBaseline = named(
+	'ControlBaseline',
+	z
+		.strictObject({
+			source: z.enum(['stored', 'default']).meta({ description: '`stored`: a period chosen with "recompute"; `default`: none chosen, the earliest readings of the series.' }),
+			from: day.meta({ description: 'First day (UTC) of the baseline readings.' }),
+			to: day.meta({ description: 'Last day (UTC) of the baseline readings.' }),
+			n: count,
+			centre: z.number(),
+			mrBar: z.number(),
+			sigma: z.number().meta({ description: 'MR̄ / 1.128, the σ of the zones and of the EWMA.' }),
+			setAt: instant.nullable(),
+			setBy: z.string().nullable(),
+			description: z.string()
+		})
+		.meta({ description: 'The phase I readings the limits come from; the limits stay fixed whatever window is charted. Null when the series has fewer than two readings.' })
+);
+export type ControlBaseline = z.output<typeof ControlBaseline>;
+
+export const ControlRuleBreaks = named(
+	'ControlRuleBreaks',
+	z.strictObject({
+		rule: ruleId,
+		name: z.string(),
+		description: z.string(),
+		points: z
+			.array(z.strictObject({ index: z.int(), from: z.int(), id: z.int(), t: instant, value: z.number() }))
+			.meta({ description: 'Each point completing the pattern (`index` into `points`), with the first point of its pattern (`from`).' })
+	})
+);
+
+export const EwmaChartOut = named(
+	'EwmaChart',
+	z.strictObject({
+		lambda: z.number(),
+		L: z.number(),
+		centre: z.number(),
+		sigma: z.number(),
+		steadyUcl: z.number(),
+		steadyLcl: z.number(),
+		points: z.array(z.strictObject({ z: z.number(), ucl: z.number(), lcl: z.number(), beyond: z.boolean() })).meta({ description: 'One per point of `points`, in the same order.' })
+	})
+);
 
 export const ControlResponse = named(
 	'ControlResponse',
@@ -228,19 +285,54 @@ export const ControlResponse = named(
 		...measured,
 		total: count.meta({ description: 'Readings in the selection; the chart holds the most recent `n` of them.' }),
 		n: count,
+		baseline: ControlBaseline.nullable(),
 		centre: maybe,
-		ucl: maybe,
-		lcl: maybe,
+		ucl: maybe.meta({ description: 'x̄ + 2.66·MR̄ of the baseline, no higher than the quantity’s physical upper bound.' }),
+		lcl: maybe.meta({ description: 'x̄ − 2.66·MR̄ of the baseline, no lower than the quantity’s physical lower bound.' }),
+		uclClipped: z.boolean(),
+		lclClipped: z.boolean(),
+		rawUcl: maybe.meta({ description: 'The upper limit before clipping.' }),
+		rawLcl: maybe.meta({ description: 'The lower limit before clipping.' }),
+		bounds: z.strictObject({ min: z.number(), max: maybe }).meta({ description: 'What the quantity can physically be.' }),
 		mrBar: maybe,
 		mrUcl: maybe,
 		mrLcl: maybe,
 		specLimits: LimitInfo.nullable().meta({ description: 'The shop’s limits in force, to draw beside the control limits.' }),
 		points: z.array(ControlPoint),
 		beyondLimits: z.array(z.int()),
-		mrBeyondLimits: z.array(z.int())
+		mrBeyondLimits: z.array(z.int()),
+		rules: z.array(ruleId).meta({ description: 'The run rules tested.' }),
+		ruleBreaks: z.array(ControlRuleBreaks).meta({ description: 'Per rule tested (in rule order), every point that breaks it.' }),
+		ewma: EwmaChartOut.nullable().meta({ description: 'EWMA of the same points (λ = 0.2, L = 3), centred on the baseline mean with its σ.' })
 	})
 );
 export type ControlResponse = z.output<typeof ControlResponse>;
+
+export const PChartResponse = named(
+	'PChartResponse',
+	z.strictObject({
+		family: FamilyLabel,
+		side: side.nullable(),
+		stage,
+		measurement,
+		filters: EchoFilters,
+		pBar: maybe.meta({ description: 'Σ positions outside / Σ positions judged, over the months shown.' }),
+		n: count,
+		failures: count,
+		months: z.array(
+			z.strictObject({
+				month: z.string().regex(/^\d{4}-\d{2}$/),
+				n: count,
+				failures: count,
+				p: z.number(),
+				lcl: z.number(),
+				ucl: z.number(),
+				beyond: z.boolean()
+			})
+		)
+	})
+);
+export type PChartResponse = z.output<typeof PChartResponse>;
 
 export const WearResponse = named(
 	'WearResponse',

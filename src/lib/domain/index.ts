@@ -2,3 +2,4 @@
 // outside this folder, so a component and a server statistic can share them.
 export * from './days';
 export * from './robust';
+export * from './control-rules';

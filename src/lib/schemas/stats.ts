@@ -2,6 +2,7 @@
 // client and server: the charts build their URLs from the same names.
 import { z } from 'zod';
 import { calendarDay, text } from './text';
+import { parseRules, RULE_IDS, WESTERN_ELECTRIC, type RuleId } from '../domain/control-rules';
 import { DECISION_KINDS, MEASUREMENTS, SIDES, STAGES, isUnit, type DecisionKind, type Measurement, type Unit } from '../measurements';
 
 /** Decision kinds, the same list as the database's decision_kind enum. */
@@ -165,7 +166,19 @@ export const capabilityQuerySchema = z
 	.superRefine(checkRanges);
 export type CapabilityQuery = z.infer<typeof capabilityQuerySchema>;
 
-/** GET /api/v1/stats/control: individuals and moving-range chart. */
+/** The `rules` parameter: rule ids (we1–we4, n1–n8) and the sets `we`, `nelson`, `all`. */
+const rulesParam = text('rules')
+	.trim()
+	.transform((s, ctx): RuleId[] => {
+		const r = parseRules(s);
+		if (r === null) {
+			ctx.addIssue({ code: 'custom', message: `rules must be a comma-separated list of: we, nelson, all, none, ${RULE_IDS.join(', ')}` });
+			return z.NEVER;
+		}
+		return r;
+	});
+
+/** GET /api/v1/stats/control: individuals and moving-range chart, EWMA, run rules. */
 export const controlQuerySchema = z
 	.strictObject({
 		...filterShape,
@@ -173,11 +186,25 @@ export const controlQuerySchema = z
 		side,
 		measurement,
 		stage: stage.default('final'),
-		/** The most recent readings charted (the limits come from the same readings). */
-		limit: wholeNumber('limit', 10_000).refine((n) => n >= 2, 'limit must be at least 2').default(1000)
+		/** The most recent readings charted; the limits come from the baseline, not from these. */
+		limit: wholeNumber('limit', 10_000).refine((n) => n >= 2, 'limit must be at least 2').default(1000),
+		/** The run rules to test; the Western Electric rules unless asked. */
+		rules: rulesParam.default(WESTERN_ELECTRIC)
 	})
 	.superRefine(checkRanges);
 export type ControlQuery = z.infer<typeof controlQuerySchema>;
+
+/** GET /api/v1/stats/pchart: monthly share of valve positions outside the limits of their day. */
+export const pchartQuerySchema = z
+	.strictObject({ ...filterShape, family: familyCode, measurement, stage: stage.default('final') })
+	.superRefine(checkRanges);
+export type PChartQuery = z.infer<typeof pchartQuerySchema>;
+
+/** The quality page's "recompute the control limits from … to …" form. */
+export const baselineFormSchema = z
+	.strictObject({ family: familyCode, side, measurement, stage: stage.default('final'), from: day('from'), to: day('to') })
+	.superRefine(checkRanges);
+export type BaselineForm = z.infer<typeof baselineFormSchema>;
 
 /** GET /api/v1/stats/wear: a measurement against the head's mileage. */
 export const wearQuerySchema = z

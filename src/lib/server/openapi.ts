@@ -13,6 +13,7 @@ import {
 	CompareResponse,
 	contract,
 	ControlResponse,
+	PChartResponse,
 	DescribeResponse,
 	DistributionResponse,
 	ErrorBody,
@@ -41,6 +42,7 @@ import {
 	comebacksQuerySchema,
 	compareQuerySchema,
 	controlQuerySchema,
+	pchartQuerySchema,
 	distributionQuerySchema,
 	outliersQuerySchema,
 	ratesQuerySchema,
@@ -86,7 +88,8 @@ const PARAMETER_TEXT: Record<string, string> = {
 	pageSize: 'Rows per page.',
 	sort: 'Sort key; a leading minus sorts descending.',
 	check: `What counts as a failure: a measurement key (a reading outside the limits of its day; seal tests included), or decision:<kind> with kind one of ${DECISION_KINDS.join(', ')}.`,
-	limit: 'How many of the most recent readings to chart.',
+	limit: 'How many of the most recent readings to chart (the control limits do not depend on it: they come from the baseline).',
+	rules: 'Run rules to test, comma-separated: we1–we4 (Western Electric), n1–n8 (Nelson), or the sets we, nelson, all (none: no rule). Default we.',
 	format: 'csv or json (default json). Leave out `page` to export every row.',
 	layout: 'wide (one column per measurement) or long (one row per reading); guessed from the header when left out.',
 	dryRun: 'Check the file without storing anything (1 or true).',
@@ -266,7 +269,28 @@ export const OPENAPI = {
 			})
 		},
 		'/api/v1/stats/control': {
-			get: operation('control', { summary: 'Individuals and moving-range chart in time order', role: 'viewer', tag: 'Statistics', query: controlQuerySchema as unknown as ZodObjectLike, example: 'family=ALDER-4&side=intake&measurement=seat_width&stage=final&limit=200', responses: { '200': answer(ControlResponse, 'Centre lines, control limits and the points beyond them.'), '404': noFamily } })
+			get: operation('control', {
+				summary: 'Individuals and moving-range chart with limits from a fixed baseline, run rules and EWMA',
+				description:
+					'The limits come from the baseline period an engineer chose on the quality page ("recompute"), or, when none was chosen, from the first 100 readings of the series; they do not change with `limit` or the filters. Limits beyond the quantity’s physical bounds are clipped to them (`uclClipped`, `lclClipped`). `rules` picks the run rules: we1–we4 (Western Electric), n1–n8 (Nelson), or the sets `we`, `nelson`, `all` (default `we`).',
+				role: 'viewer',
+				tag: 'Statistics',
+				query: controlQuerySchema as unknown as ZodObjectLike,
+				example: 'family=ALDER-4&side=intake&measurement=seat_width&stage=final&limit=200&rules=we,n2,n3',
+				responses: { '200': answer(ControlResponse, 'Centre line and limits of the baseline, the points, every rule break by rule, and the EWMA.'), '404': noFamily }
+			})
+		},
+		'/api/v1/stats/pchart': {
+			get: operation('pchart', {
+				summary: 'p-chart: monthly share of valve positions outside the limits of their day',
+				description:
+					'A valve position fails when any of its readings of the series is outside the limits in force on its day; it counts in the month of its first reading. Limits p̄ ± 3·√(p̄(1 − p̄)/nᵢ) for each month’s n (NIST/SEMATECH e-Handbook §6.3.3.2), the lower one no lower than 0. Without `side`, both sides.',
+				role: 'viewer',
+				tag: 'Statistics',
+				query: pchartQuerySchema as unknown as ZodObjectLike,
+				example: 'family=ALDER-4&measurement=vacuum_hold&side=exhaust',
+				responses: { '200': answer(PChartResponse, 'The months with their shares and limits.'), '404': noFamily }
+			})
 		},
 		'/api/v1/stats/wear': {
 			get: operation('wear', { summary: 'A measurement against head mileage: least-squares line and 95 % band', role: 'viewer', tag: 'Statistics', query: wearQuerySchema as unknown as ZodObjectLike, example: 'measurement=clearance&side=exhaust&family=ALDER-4', responses: { '200': answer(WearResponse, 'The fit and up to 5,000 points.'), '404': noFamily } })

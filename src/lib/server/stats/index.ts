@@ -63,7 +63,25 @@ export {
 	type CapabilityVerdict,
 	type SpecLimits
 } from './capability';
-export { controlChart, type ChartPoint, type ControlChart, type ControlPoint } from './control';
+export {
+	baselineFigures,
+	clippedLimits,
+	controlChart,
+	ewmaChart,
+	pChart,
+	pChartLimits,
+	sigmaFromMrBar,
+	EWMA_L,
+	EWMA_LAMBDA,
+	type BaselineFigures,
+	type ChartPoint,
+	type ClippedLimits,
+	type ControlChart,
+	type ControlPoint,
+	type EwmaChart,
+	type PChartPoint
+} from './control';
+export { NELSON, RULE_IDS, RULES, ruleBreaks, WESTERN_ELECTRIC, type RuleBreak, type RuleId, type RuleInfo } from './rules';
 export { linearFit, type BandPoint, type LinearFit } from './regression';
 export {
 	countBeyond,

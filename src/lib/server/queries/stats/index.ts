@@ -6,3 +6,4 @@ export * from './distribution';
 export * from './outliers';
 export * from './rates';
 export * from './series';
+export * from './control';

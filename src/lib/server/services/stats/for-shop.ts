@@ -5,7 +5,10 @@ import { inShop } from '../../db';
 import type { Conn } from '../../db/scope';
 import { capabilityStudy } from './capability';
 import { checkReading } from './check';
-import { control } from './control';
+import type { ControlBaseline } from '../../../contract';
+import type { BaselineForm } from '../../../schemas/stats';
+import type { Who } from '../entry';
+import { control, pchart, recomputeBaseline } from './control';
 import { compare, distribution } from './distribution';
 import { outliers } from './outliers';
 import { comebacks, rates } from './rates';
@@ -25,4 +28,9 @@ export const ratesFor = scoped(rates);
 export const comebacksFor = scoped(comebacks);
 export const capabilityFor = scoped(capabilityStudy);
 export const controlFor = scoped(control);
+export const pchartFor = scoped(pchart);
 export const wearFor = scoped(wear);
+
+/** Recomputes a family × series' control limits from a period, in the shop's scope. */
+export const recomputeBaselineFor = (shopId: string, who: Who, f: BaselineForm): Promise<ControlBaseline> =>
+	inShop(shopId, (tx) => recomputeBaseline(tx, shopId, who, f));
