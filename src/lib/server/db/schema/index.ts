@@ -11,3 +11,4 @@ export * from './audit';
 export * from './mail';
 export * from './access';
 export * from './stats';
+export * from './rates';
