@@ -35,7 +35,7 @@ async function setUp() {
 		// rates triggers (drizzle/0012) then judge every reading the import writes.
 		await t`
 			insert into limits (shop_id, family_id, measurement, side, stage, min, max, effective_from)
-			select ${shop.id}, ${family.id}, v.m::measurement, sd::side, st::stage, v.mn, v.mx * f, ef::date
+			select ${shop.id}, ${family.id}, v.m::measurement, sd::side, st::stage, v.mn, case when v.mx is not null then greatest(coalesce(v.mn, 0), v.mx * f) end, ef::date
 			from (values ('stem_diameter', 6.94, 6.99), ('guide_bore', null, 7.1), ('clearance', null, 0.1), ('face_runout', null, 0.04),
 				('seat_runout', null, 0.05), ('seat_width', 1.2, 1.9), ('margin', 1.1, null), ('roughness_ra', null, 0.6)) v(m, mn, mx),
 				unnest(array['intake', 'exhaust']) sd, unnest(array['as_received', 'final']) st,
