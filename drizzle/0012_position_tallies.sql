@@ -59,13 +59,14 @@ SELECT format($q$
 		WHERE version > 0
 	), pm AS (
 		SELECT sign, shop_id, head_id, family_id, series_key, cylinder, valve, month, bool_or(outside) AS failed
-		FROM judged GROUP BY 1, 2, 3, 4, 5, 6, 7, 8
+		-- The head first: the sort settles most comparisons on it, and its order serves the window below.
+		FROM judged GROUP BY head_id, series_key, cylinder, valve, sign, shop_id, family_id, month
 	), chained AS (
 		SELECT sign, shop_id, series_key, family_id, cylinder, month, failed,
 			coalesce(lag(month) OVER w, '-infinity') AS prev_judged,
 			coalesce(max(month) FILTER (WHERE failed) OVER (w ROWS BETWEEN UNBOUNDED PRECEDING AND 1 PRECEDING), '-infinity') AS prev_failed
 		FROM pm
-		WINDOW w AS (PARTITION BY sign, shop_id, head_id, family_id, series_key, cylinder, valve ORDER BY month)
+		WINDOW w AS (PARTITION BY head_id, series_key, cylinder, valve, sign, shop_id, family_id ORDER BY month)
 	), d AS MATERIALIZED (
 		SELECT shop_id, series_key, family_id, month, cylinder, prev_month, sum(checked)::int AS checked, sum(failed)::int AS failed
 		FROM (
