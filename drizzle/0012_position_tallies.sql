@@ -99,6 +99,22 @@ SELECT format($q$
 $q$, src)
 $f$;
 --> statement-breakpoint
+-- The rows of a statement-level trigger's transition tables (new_rows, old_rows, both for an
+-- update), as query text for EXECUTE in the trigger function, which sees them.
+CREATE FUNCTION lapmark_transition_rows(op text, cols text) RETURNS text LANGUAGE sql IMMUTABLE PARALLEL SAFE AS $$
+	SELECT CASE op
+		WHEN 'INSERT' THEN format('SELECT %s FROM new_rows', cols)
+		WHEN 'DELETE' THEN format('SELECT %s FROM old_rows', cols)
+		ELSE format('SELECT %1$s FROM new_rows UNION ALL SELECT %1$s FROM old_rows', cols)
+	END
+$$;
+--> statement-breakpoint
+-- The per-shop advisory lock of the summary triggers (0004), for the shops of `rows` (query text
+-- with a shop_id column), taken in shop order.
+CREATE FUNCTION lapmark_lock_shops_sql(rows text) RETURNS text LANGUAGE sql IMMUTABLE PARALLEL SAFE AS $$
+	SELECT format('SELECT pg_advisory_xact_lock(7120427, hashtext(s.shop_id::text)) FROM (SELECT DISTINCT shop_id FROM (%s) w ORDER BY shop_id) s', rows)
+$$;
+--> statement-breakpoint
 -- After every statement on readings: the positions of every head the statement touched, all
 -- their readings as they are now (+1) and as they were before it (-1: now, less the statement's
 -- new rows, plus its old ones); positions the statement left alone cancel. The heads' readings
@@ -116,19 +132,8 @@ DECLARE
 	touched text;
 	src text;
 BEGIN
-	IF TG_OP = 'INSERT' THEN
-		PERFORM pg_advisory_xact_lock(7120427, hashtext(s.shop_id::text))
-		FROM (SELECT DISTINCT shop_id FROM new_rows ORDER BY shop_id) s;
-		touched := 'SELECT head_id FROM new_rows';
-	ELSIF TG_OP = 'DELETE' THEN
-		PERFORM pg_advisory_xact_lock(7120427, hashtext(s.shop_id::text))
-		FROM (SELECT DISTINCT shop_id FROM old_rows ORDER BY shop_id) s;
-		touched := 'SELECT head_id FROM old_rows';
-	ELSE
-		PERFORM pg_advisory_xact_lock(7120427, hashtext(s.shop_id::text))
-		FROM (SELECT shop_id FROM old_rows UNION SELECT shop_id FROM new_rows ORDER BY shop_id) s;
-		touched := 'SELECT head_id FROM new_rows UNION ALL SELECT head_id FROM old_rows';
-	END IF;
+	touched := lapmark_transition_rows(TG_OP, 'shop_id, head_id');
+	EXECUTE lapmark_lock_shops_sql(touched);
 	src := format($s$
 		cur AS MATERIALIZED (
 			SELECT r.id, r.shop_id, r.head_id, r.family_id, r.series_key, r.cylinder, r.valve, r.measured_at, r.value
@@ -168,20 +173,8 @@ SECURITY DEFINER SET search_path = public, pg_temp AS $$
 DECLARE
 	changed text;
 BEGIN
-	IF TG_OP = 'INSERT' THEN
-		PERFORM pg_advisory_xact_lock(7120427, hashtext(s.shop_id::text))
-		FROM (SELECT DISTINCT shop_id FROM new_rows ORDER BY shop_id) s;
-		changed := 'SELECT shop_id, family_id, lapmark_series(measurement, stage, side) AS series_key FROM new_rows';
-	ELSIF TG_OP = 'DELETE' THEN
-		PERFORM pg_advisory_xact_lock(7120427, hashtext(s.shop_id::text))
-		FROM (SELECT DISTINCT shop_id FROM old_rows ORDER BY shop_id) s;
-		changed := 'SELECT shop_id, family_id, lapmark_series(measurement, stage, side) AS series_key FROM old_rows';
-	ELSE
-		PERFORM pg_advisory_xact_lock(7120427, hashtext(s.shop_id::text))
-		FROM (SELECT shop_id FROM old_rows UNION SELECT shop_id FROM new_rows ORDER BY shop_id) s;
-		changed := 'SELECT shop_id, family_id, lapmark_series(measurement, stage, side) AS series_key FROM new_rows
-			UNION SELECT shop_id, family_id, lapmark_series(measurement, stage, side) FROM old_rows';
-	END IF;
+	changed := lapmark_transition_rows(TG_OP, 'shop_id, family_id, lapmark_series(measurement, stage, side) AS series_key');
+	EXECUTE lapmark_lock_shops_sql(changed);
 	EXECUTE format('DELETE FROM reading_position_tallies t USING (%s) a
 		WHERE t.shop_id = a.shop_id AND t.series_key = a.series_key AND t.family_id = a.family_id', changed);
 	EXECUTE lapmark_position_tallies_sql(format($s$

@@ -6,7 +6,6 @@
 // limit versions and chains a position's months with correlated subqueries, independent of the
 // triggers' width_bucket and window functions. And the rates answers read from the tallies must
 // be the ones read from readings, for selections with and without dates, on each side.
-import { Readable } from 'node:stream';
 import { eq } from 'drizzle-orm';
 import fc from 'fast-check';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
@@ -14,10 +13,9 @@ import { SIDES, STAGES, type Side, type Stage } from '../../src/lib/measurements
 import { withShop, type ScopedWork } from '../../src/lib/server/db/scope';
 import { families, heads, limits, readings } from '../../src/lib/server/db/schema';
 import { seriesKeys } from '../../src/lib/server/db/series';
-import { runImport } from '../../src/lib/server/import/run';
 import { undoBatch } from '../../src/lib/server/queries/imports';
 import { measurementTallies, monthlyPositionTallies, talliesSource, type Selection } from '../../src/lib/server/queries/stats';
-import { makeShop, raw, testDb } from '../helpers/db';
+import { importEachWay, makeShop, raw, testDb } from '../helpers/db';
 
 const { db, sql } = testDb();
 let shopId: string;
@@ -350,27 +348,13 @@ describe('position tallies after imports', () => {
 			}
 			return lines.join('\n') + '\n';
 		};
-		const [{ role }] = await sql`select exists (select 1 from pg_roles where rolname = 'lapmark_import') as role`;
-		const batches: string[] = [];
-		for (const [prefix, way] of [['RTI-A', 'direct-replica'], ['RTI-B', 'staged'], ['RTI-C', 'direct']] as const) {
-			const direct = way !== 'staged';
-			const out = await runImport(sql, Readable.from([Buffer.from(file(prefix, prefix.length * 11 + (direct ? 1 : 2)))]), {
-				shopId,
-				actor: { userId: null, label: 'rate tallies test' },
-				fileName: `${prefix}.csv`,
-				dryRun: false,
-				onReject: 'abort',
-				limitBytes: 1 << 24,
-				now: new Date('2026-12-01T00:00:00Z'),
-				direct,
-				replica: way === 'direct-replica'
-			});
-			expect(out.status).toBe(201);
-			expect(out.result.path).toBe(role ? way : 'staged');
-			expect(out.result.readings).toBe(5 * 16 * 2);
-			batches.push(out.result.batchId!);
-			await expectConsistent();
-		}
+		const prefixes = ['RTI-A', 'RTI-B', 'RTI-C'];
+		const batches = await importEachWay(sql, shopId, {
+			label: 'rate tallies test',
+			readings: 5 * 16 * 2,
+			file: (way, i) => file(prefixes[i], prefixes[i].length * 11 + (way !== 'staged' ? 1 : 2)),
+			after: expectConsistent
+		});
 		await expectAnswersAgree();
 		const undone = await inShop((tx) => undoBatch(tx, shopId, batches[0]));
 		expect(undone).toMatchObject({ ok: true, readingsRemoved: 5 * 16 * 2, headsRemoved: 5 });
