@@ -115,9 +115,9 @@ CREATE FUNCTION lapmark_lock_shops_sql(rows text) RETURNS text LANGUAGE sql IMMU
 	SELECT format('SELECT pg_advisory_xact_lock(7120427, hashtext(s.shop_id::text)) FROM (SELECT DISTINCT shop_id FROM (%s) w ORDER BY shop_id) s', rows)
 $$;
 --> statement-breakpoint
--- After every statement on readings: the positions of every head the statement touched, all
--- their readings as they are now (+1) and as they were before it (-1: now, less the statement's
--- new rows, plus its old ones); positions the statement left alone cancel. The heads' readings
+-- After every statement on readings: the positions of every head the statement touched, in the
+-- series it touched, all their readings as they are now (+1) and as they were before it (-1: now,
+-- less the statement's new rows, plus its old ones); positions the statement left alone cancel. The heads' readings
 -- are found through readings_identity_key (head_id leads it, and uuid equality may narrow an
 -- index scan under row-level security), by an array, so the plan does not hang on an estimate
 -- of the transition table (a join on (shop, series) once read every reading of the series per
@@ -132,12 +132,13 @@ DECLARE
 	touched text;
 	src text;
 BEGIN
-	touched := lapmark_transition_rows(TG_OP, 'shop_id, head_id');
+	touched := lapmark_transition_rows(TG_OP, 'shop_id, head_id, series_key');
 	EXECUTE lapmark_lock_shops_sql(touched);
 	src := format($s$
 		cur AS MATERIALIZED (
 			SELECT r.id, r.shop_id, r.head_id, r.family_id, r.series_key, r.cylinder, r.valve, r.measured_at, r.value
-			FROM readings r WHERE r.head_id = ANY (ARRAY(SELECT DISTINCT head_id FROM (%s) w))
+			FROM readings r WHERE r.head_id = ANY (ARRAY(SELECT DISTINCT head_id FROM (%1$s) w))
+				AND r.series_key = ANY (ARRAY(SELECT DISTINCT series_key FROM (%1$s) w))
 		), src AS (
 			SELECT 1 AS sign, %2$s FROM cur
 			UNION ALL
