@@ -29,7 +29,17 @@ async function setUp() {
 	await sql.begin(async (t) => {
 		await t`select set_config('lapmark.system', 'on', true)`;
 		const [shop] = await t`insert into shops (name, slug) values ('Bench shop', 'bench-shop') returning id`;
-		await t`insert into families (shop_id, code, cylinders, intake_valves, exhaust_valves) values (${shop.id}, 'BENCH-8', ${CYL}, ${VALVES}, ${VALVES})`;
+		const [family] = await t`insert into families (shop_id, code, cylinders, intake_valves, exhaust_valves) values (${shop.id}, 'BENCH-8', ${CYL}, ${VALVES}, ${VALVES}) returning id`;
+		// Limit versions for every measurement of the file, each stage and side, two versions
+		// (the second from the middle of the file's dates), as a shop's families have them: the
+		// rates triggers (drizzle/0012) then judge every reading the import writes.
+		await t`
+			insert into limits (shop_id, family_id, measurement, side, stage, min, max, effective_from)
+			select ${shop.id}, ${family.id}, v.m::measurement, sd::side, st::stage, v.mn, case when v.mx is not null then greatest(coalesce(v.mn, 0), v.mx * f) end, ef::date
+			from (values ('stem_diameter', 6.94, 6.99), ('guide_bore', null, 7.1), ('clearance', null, 0.1), ('face_runout', null, 0.04),
+				('seat_runout', null, 0.05), ('seat_width', 1.2, 1.9), ('margin', 1.1, null), ('roughness_ra', null, 0.6)) v(m, mn, mx),
+				unnest(array['intake', 'exhaust']) sd, unnest(array['as_received', 'final']) st,
+				(values ('2024-01-01', 1.0), ('2025-09-01', 0.99)) e(ef, f)`;
 		const [u] = await t`insert into "user" (id, email, name) values (gen_random_uuid()::text, 'bench@bench.example', 'Bench') returning id`;
 		await t`insert into memberships (shop_id, user_id, role) values (${shop.id}, ${u.id}, 'engineer')`;
 		await t`insert into api_tokens (shop_id, user_id, name, prefix, token_hash, role) values (${shop.id}, ${u.id}, 'bench', ${token.slice(0, 10)}, ${sha256Hex(token)}, 'engineer')`;

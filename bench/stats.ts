@@ -16,7 +16,7 @@
 //   4. through psql, as the app's role with the shop set (row-level security on, as in the
 //      app), median of the same number of runs: the bare SQL of the same aggregate over the
 //      readings (sqlMs; "ratio" = route / sqlMs, the issue's measure) and the same figures read
-//      by hand from the summaries (summarySqlMs, summaryRatio; not for rates, which keep none);
+//      by hand from the summaries (summarySqlMs, summaryRatio; for rates, reading_position_tallies);
 //      for scale, the raw aggregate over every reading once (median of 3; BENCH_WHOLE=0 skips);
 //   5. time what the readings triggers cost: all readings deleted and inserted again, with the
 //      triggers and without, inside a transaction that is rolled back (BENCH_TRIGGER=0 skips).
@@ -79,7 +79,7 @@ if (readings > 0) {
 }
 
 // Steady state, as autovacuum leaves it: statistics and visibility maps for every table.
-await sql.unsafe('vacuum analyze readings, reading_summaries, reading_value_counts, heads, decisions, limits, families');
+await sql.unsafe('vacuum analyze readings, reading_summaries, reading_value_counts, reading_position_tallies, heads, decisions, limits, families');
 
 const system = <T>(work: (t: postgres.TransactionSql) => Promise<T>) =>
 	sql.begin(async (t) => {
@@ -113,6 +113,36 @@ const [consistency] = await system(
 );
 log(`summaries: ${consistency.groups} group-months; ${consistency.moments} moment rows, ${consistency.counts} count rows and ${consistency.totals} all-time count rows differ from a full recomputation`);
 
+// The position tallies (drizzle/0012) against the same figures from readings and limits: each
+// reading judged by a date-range join on the limit versions, each position's months chained by lag.
+const [positionConsistency] = await system(
+	(t) => t<{ rows: number; differ: number }[]>`
+		with lim as (
+			select l.shop_id, l.family_id, lapmark_series(l.measurement, l.stage, l.side) as series_key, l.effective_from, l.min, l.max,
+				lead(l.effective_from) over (partition by l.shop_id, l.family_id, l.measurement, l.stage, l.side order by l.effective_from) as until
+			from limits l
+		), pm as (
+			select r.shop_id, r.head_id, r.family_id, r.series_key, r.cylinder, r.valve, lapmark_month(r.measured_at) as month,
+				bool_or(r.value < coalesce(l.min, '-Infinity') or r.value > coalesce(l.max, 'Infinity')) as failed
+			from readings r join lim l on l.shop_id = r.shop_id and l.family_id = r.family_id and l.series_key = r.series_key
+				and l.effective_from <= (r.measured_at at time zone 'UTC')::date and (l.until is null or (r.measured_at at time zone 'UTC')::date < l.until)
+			group by 1, 2, 3, 4, 5, 6, 7
+		), e as (
+			select *, lag(month) over (partition by shop_id, head_id, family_id, series_key, cylinder, valve order by month) as pj,
+				lag(month) over (partition by shop_id, head_id, family_id, series_key, cylinder, valve, failed order by month) as pf
+			from pm
+		), want as (
+			select shop_id, series_key, family_id, month, cylinder, prev_month, sum(c)::int as checked, sum(f)::int as failed from (
+				select shop_id, series_key, family_id, month, cylinder, coalesce(pj, '-infinity') as prev_month, 1 as c, 0 as f from e
+				union all select shop_id, series_key, family_id, month, cylinder, coalesce(pf, '-infinity'), 0, 1 from e where failed) x
+			group by 1, 2, 3, 4, 5, 6
+		)
+		select (select count(*)::int from reading_position_tallies) as rows,
+			(select count(*)::int from want w full join reading_position_tallies t using (shop_id, series_key, family_id, month, cylinder, prev_month)
+				where w.checked is distinct from t.checked or w.failed is distinct from t.failed) as differ`
+);
+log(`position tallies: ${positionConsistency.rows} rows; ${positionConsistency.differ} differ from a full recomputation`);
+
 // ---------------------------------------------------------------------------------------------
 // 3 and 4. Routes over HTTP, bare SQL through psql
 
@@ -127,6 +157,20 @@ const lit = (s: string) => `'${s}'`;
 const keyFinal = seriesKey('clearance', 'final', 'exhaust');
 const finalEnum = `r.measurement = 'clearance' and r.stage = 'final' and r.side = 'exhaust'`;
 const enumSeries = (side: string) => `measurement = 'clearance' and stage = 'as_received' and side = '${side}'`;
+
+/**
+ * Every cell of the rates answer from per family × side × cylinder counts `cells`: those, and the
+ * sums per family × side, family, side and overall, each with its Wilson 95 % interval.
+ */
+const rateCells = (cells: string) => `
+		cells as (${cells}),
+		sums as (select family_id, s, cylinder, sum(n) as n, sum(failures) as f from cells
+			group by grouping sets ((family_id, s, cylinder), (family_id, s), (family_id), (s), ())),
+		w as (select *, f / n as p, 1.959963984540054 ^ 2 as z2 from sums)
+		select family_id, s, cylinder, n, f as failures,
+			(p + z2 / (2 * n) - sqrt(z2) * sqrt(p * (1 - p) / n + z2 / (4 * n * n))) / (1 + z2 / n) as low,
+			(p + z2 / (2 * n) + sqrt(z2) * sqrt(p * (1 - p) / n + z2 / (4 * n * n))) / (1 + z2 / n) as high
+		from w order by 1 nulls first, 2 nulls first, 3 nulls first`;
 
 /** The bare SQL of each route's aggregate, with the series given as `where` text. */
 const bare = {
@@ -175,8 +219,7 @@ const bare = {
 				and (lv.effective_to is null or lv.effective_to > (r.measured_at at time zone 'UTC')::date)
 			where r.shop_id = ${lit(ids.shop)} and ${series}
 			group by r.head_id, r.family_id, 2, r.cylinder, r.valve
-		)
-		select family_id, s, cylinder, count(*) as n, count(*) filter (where failed) as failures from pos group by 1, 2, 3`;
+		), ${rateCells('select family_id, s, cylinder, count(*) as n, count(*) filter (where failed) as failures from pos group by 1, 2, 3')}`;
 	},
 	// The control chart: the 1,000 most recent readings with their heads, and the baseline (none
 	// is stored in the bench: the first 100 readings of the series).
@@ -218,7 +261,8 @@ const bare = {
  * over the counts; type-7 quantiles and the MAD as cumulative counts (readings are quantised, so
  * the table is exact: the k-th smallest reading is the value whose cumulative count first exceeds
  * k); Tukey and limit counts and the histogram from the counts. This is what the routes read,
- * without HTTP, the token, the transaction or the app's own work. Rates keep no summaries.
+ * without HTTP, the token, the transaction or the app's own work. Rates: below, from the position
+ * tallies.
  */
 const fromSummaries = (familyId: string | null) => {
 	const where = `shop_id = ${lit(ids.shop)} and series_key = ${keyAR('exhaust')}${familyId ? ` and family_id = ${lit(familyId)}` : ''}`;
@@ -245,7 +289,7 @@ const limitOf = (familyId: string | null) => `
 		lim as (select distinct on (family_id) family_id, min, max from limits where shop_id = ${lit(ids.shop)}${familyId ? ` and family_id = ${lit(familyId)}` : ''}
 			and measurement = 'clearance' and stage = 'as_received' and side = 'exhaust' and effective_from <= current_date
 			order by family_id, effective_from desc)`;
-const summaryBare: Record<'distribution' | 'compare' | 'check', string> = {
+const summaryBare: Record<'distribution' | 'compare' | 'rates' | 'check', string> = {
 	distribution: `
 		with ${fromSummaries(ids.family)}, ${limitOf(ids.family)},
 		f as (select s.*, least(60, greatest(5, ceil((mx - mn) / nullif(2 * (q[4] - q[2]) / cbrt(n), 0))))::int as k from s),
@@ -260,6 +304,13 @@ const summaryBare: Record<'distribution' | 'compare' | 'check', string> = {
 			where c.value < coalesce(lim.min, '-Infinity') or c.value > coalesce(lim.max, 'Infinity') group by 1)
 		select s.family_id, s.n, s.mean, s.sd, s.mn, s.mx, s.q, mads.mad, tk.tukey, coalesce(o.outside, 0) as outside
 		from s join mads using (family_id) join tk using (family_id) left join o using (family_id) order by s.q[3]`,
+	// Without dates, each position's first judged month is its entry with no month before it.
+	rates: `
+		with ${rateCells(`
+			select family_id, series_key as s, cylinder, sum(checked) as n, sum(failed) as failures
+			from reading_position_tallies
+			where shop_id = ${lit(ids.shop)} and series_key in (${keyAR('intake')}, ${keyAR('exhaust')}) and prev_month = '-infinity'
+			group by 1, 2, 3 having sum(checked) > 0`)}`,
 	check: `
 		with ${fromSummaries(ids.family)}, ${limitOf(ids.family)}
 		select s.n, (select sum(n) from c where value < 0.13) as below, (select sum(n) from c where value = 0.13) as equal,
@@ -316,7 +367,7 @@ function differences(a: unknown, b: unknown, path = ''): string[] {
 	return a === b ? [] : [`${path}: ${JSON.stringify(a)} vs ${JSON.stringify(b)}`];
 }
 const byFamily = (rows: Record<string, unknown>[]) => [...rows].sort((p, q) => String(p.family_id ?? '').localeCompare(String(q.family_id ?? '')));
-for (const name of ['distribution', 'compare', 'check'] as const) {
+for (const name of ['distribution', 'compare', 'rates', 'check'] as const) {
 	const [raw, summary] = [byFamily(await asShop(bare[name](byKey[name]))), byFamily(await asShop(summaryBare[name]))];
 	const diff = differences(raw, summary);
 	if (diff.length) throw new Error(`the summary SQL of ${name} differs from its raw SQL: ${diff.slice(0, 5).join('; ')}`);
@@ -326,7 +377,7 @@ const [selected] = (await asShop(`
 		count(*) filter (where series_key = ${keyAR('exhaust')})::int as compare, count(*) filter (where ${byKey.rates})::int as rates,
 		count(*) filter (where family_id = ${lit(ids.family)} and series_key = ${keyFinal})::int as final
 	from readings r where r.shop_id = ${lit(ids.shop)}`)) as { distribution: number; compare: number; rates: number; final: number }[];
-log(`summary SQL agrees with raw SQL for distribution, compare and check`);
+log(`summary SQL agrees with raw SQL for distribution, compare, rates and check`);
 
 const routes = {
 	distribution: '/api/v1/stats/distribution?measurement=clearance&family=ALDER-4&side=exhaust&stage=as_received',
@@ -464,14 +515,14 @@ try {
 	}
 	console.log('raw SQL: the bare aggregate over the readings of the same selection (percentile_cont, avg, stddev_samp, Tukey and limit');
 	console.log('counts), filtered on series_key, the index a person would use; "ratio" is HTTP / raw SQL, as the targets mean it.');
-	console.log('summary SQL: the same figures read by hand from reading_summaries and reading_value_counts in one statement, which');
-	console.log('is what the routes read; "summary ratio" is HTTP / summary SQL (rates keep no summaries). "enum columns" filters');
+	console.log('summary SQL: the same figures read by hand from the summaries in one statement (rates: reading_position_tallies), which');
+	console.log('is what the routes read; "summary ratio" is HTTP / summary SQL. "enum columns" filters');
 	console.log('measurement/stage/side, which row-level security keeps out of any index scan. In-process: the service on a direct');
 	console.log('connection, no HTTP and no token.');
 	console.log(`selections: distribution and check ${selected.distribution.toLocaleString('en-US')} readings (one family × series), control and pchart ${selected.final.toLocaleString('en-US')} (ALDER-4 final exhaust clearance; control charts the latest 1,000), compare ${selected.compare.toLocaleString('en-US')} (every family, one series), rates ${selected.rates.toLocaleString('en-US')} (every family, two series)`);
 	if (wholeTableMs !== null) console.log(`for scale: that raw aggregate over all ${readings.toLocaleString('en-US')} readings, per shop × family × series: ${wholeTableMs} ms (median of 3)`);
 	console.log(`(GET /api/v1/me, the token check alone: ${floorMs} ms)`);
-	console.log(`targets: distribution, compare, rates, control, pchart under 300 ms and within 1.5× of raw SQL; check under 20 ms`);
+	console.log(`targets: distribution, compare, rates, control, pchart under 300 ms and within 1.5× of raw SQL; check under 20 ms; rates under 20 ms and within 1.0× of its summary SQL`);
 
 	// ------------------------------------------------------------------------------------------
 	// 5. What the triggers cost
@@ -521,7 +572,8 @@ try {
 		inProcessMs: Object.fromEntries(Object.entries(results).map(([k, v]) => [k, v.serviceMs])),
 		loadAverage: loadavg()[0],
 		seed: { ms: Math.round(seedMs), readingsInsertMs: readingsInsertMs },
-		summariesMismatched: consistency.moments + consistency.counts + consistency.totals,
+		summariesMismatched: consistency.moments + consistency.counts + consistency.totals + positionConsistency.differ,
+		positionTallies: positionConsistency.rows,
 		trigger
 	};
 	console.log(JSON.stringify(line));

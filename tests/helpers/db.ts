@@ -1,9 +1,13 @@
 // Test helpers for the real test database that `npm test` starts and migrates.
 import { randomUUID } from 'node:crypto';
+import { Readable } from 'node:stream';
 import { sql as raw } from 'drizzle-orm';
+import type postgres from 'postgres';
+import { expect } from 'vitest';
 import { createDb } from '../../src/lib/server/db/client';
 import { withSystem } from '../../src/lib/server/db/scope';
 import { families, shops } from '../../src/lib/server/db/schema';
+import { runImport } from '../../src/lib/server/import/run';
 
 export function testDb() {
 	const url = process.env.DATABASE_URL;
@@ -37,3 +41,40 @@ export async function pgError(fn: () => Promise<unknown>): Promise<{ code: strin
 }
 
 export { raw };
+
+/** The three ways the import writes readings: straight in (in replica mode or not) and staged. */
+const IMPORT_WAYS = ['direct-replica', 'staged', 'direct'] as const;
+
+/**
+ * Imports one file each way through runImport (`file(way, i)` writes the i-th), checks each
+ * stored `readings` readings the way it was asked to (staged when the cluster has no import
+ * role), runs `after` after each, and returns the three batches.
+ */
+export async function importEachWay(
+	sql: postgres.Sql,
+	shopId: string,
+	opts: { label: string; readings: number; file: (way: (typeof IMPORT_WAYS)[number], i: number) => string; after: () => Promise<unknown> }
+): Promise<string[]> {
+	const [{ role }] = await sql`select exists (select 1 from pg_roles where rolname = 'lapmark_import') as role`;
+	const batches: string[] = [];
+	for (const [i, way] of IMPORT_WAYS.entries()) {
+		const direct = way !== 'staged';
+		const out = await runImport(sql, Readable.from([Buffer.from(opts.file(way, i))]), {
+			shopId,
+			actor: { userId: null, label: opts.label },
+			fileName: `${opts.label}-${i}.csv`,
+			dryRun: false,
+			onReject: 'abort',
+			limitBytes: 1 << 24,
+			now: new Date('2026-12-01T00:00:00Z'),
+			direct,
+			replica: way === 'direct-replica'
+		});
+		expect(out.status).toBe(201);
+		expect(out.result.path).toBe(role ? way : 'staged');
+		expect(out.result.readings).toBe(opts.readings);
+		batches.push(out.result.batchId!);
+		await opts.after();
+	}
+	return batches;
+}

@@ -4,7 +4,7 @@ import { sql as raw } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { newApiToken, sha256Hex } from '../../src/lib/server/auth/tokens';
 import { withShop, withSystem } from '../../src/lib/server/db/scope';
-import { apiTokens, heads, importBatches, memberships, readings, users } from '../../src/lib/server/db/schema';
+import { apiTokens, heads, importBatches, limits, memberships, readings, users } from '../../src/lib/server/db/schema';
 import { CopyChannel, IMPORT_ROLE } from '../../src/lib/server/import/run';
 import { liveToken } from '../../src/lib/server/queries/memberships';
 import { makeShop, pgError, testDb } from '../helpers/db';
@@ -55,6 +55,26 @@ describe('row-level security', () => {
 	it('cannot insert a row for another shop', async () => {
 		const err = await pgError(() =>
 			withShop(db, a.shop.id, (tx) => tx.insert(heads).values({ shopId: b.shop.id, familyId: b.family.id, serial: 'SNEAK', receivedOn: '2026-05-01' }))
+		);
+		expect(err.code).toBe('42501');
+	});
+
+	it('the position tallies (derived by triggers) show only the active shop, and refuse another shop’s row', async () => {
+		// A limit version in each shop: the limits trigger judges that shop's reading into its tallies.
+		for (const s of [a, b]) {
+			await withShop(db, s.shop.id, (tx) =>
+				tx.insert(limits).values({ shopId: s.shop.id, familyId: s.family.id, measurement: 'clearance', stage: 'as_received', side: 'intake', min: null, max: 0.08, effectiveFrom: '2026-01-01' })
+			);
+		}
+		const seen = await withShop(db, a.shop.id, (tx) => tx.execute<{ shop_id: string; checked: number }>(raw`select shop_id, checked from reading_position_tallies`));
+		expect(seen).toEqual([{ shop_id: a.shop.id, checked: 1 }]);
+		const [both] = await withSystem(db, (tx) => tx.execute<{ n: number }>(raw`select count(distinct shop_id)::int as n from reading_position_tallies where shop_id in (${a.shop.id}, ${b.shop.id})`));
+		expect(both.n).toBe(2);
+		const err = await pgError(() =>
+			withShop(db, a.shop.id, (tx) =>
+				tx.execute(raw`insert into reading_position_tallies (shop_id, series_key, family_id, month, cylinder, prev_month, checked, failed)
+					values (${b.shop.id}, 8, ${b.family.id}, '2026-05-01', 1, '-infinity', 1, 0)`)
+			)
 		);
 		expect(err.code).toBe('42501');
 	});

@@ -11,10 +11,9 @@ import { MEASUREMENTS, SIDES, STAGES } from '../../src/lib/measurements';
 import { withShop } from '../../src/lib/server/db/scope';
 import { heads, readings } from '../../src/lib/server/db/schema';
 import { seriesKey, seriesKeys } from '../../src/lib/server/db/series';
-import { runImport } from '../../src/lib/server/import/run';
 import { undoBatch } from '../../src/lib/server/queries/imports';
 import { groupData, type Selection } from '../../src/lib/server/queries/stats';
-import { makeShop, raw, testDb } from '../helpers/db';
+import { importEachWay, makeShop, raw, testDb } from '../helpers/db';
 
 const { db, sql } = testDb();
 let shopId: string;
@@ -307,27 +306,13 @@ describe('summaries stay equal to a full recomputation', () => {
 			}
 			return lines.join('\n') + '\n';
 		};
-		const [{ role }] = await sql`select exists (select 1 from pg_roles where rolname = 'lapmark_import') as role`;
-		const batches: string[] = [];
-		for (const [prefix, way] of [['RUN-A', 'direct-replica'], ['RUN-B', 'staged'], ['RUN-C', 'direct']] as const) {
-			const direct = way !== 'staged';
-			const out = await runImport(sql, Readable.from([Buffer.from(file(prefix, prefix.length * 7 + (direct ? 1 : 2)))]), {
-				shopId,
-				actor: { userId: null, label: 'summaries test' },
-				fileName: `${prefix}.csv`,
-				dryRun: false,
-				onReject: 'abort',
-				limitBytes: 1 << 24,
-				now: new Date('2026-12-01T00:00:00Z'),
-				direct,
-				replica: way === 'direct-replica'
-			});
-			expect(out.status).toBe(201);
-			expect(out.result.path).toBe(role ? way : 'staged');
-			expect(out.result.readings).toBe(6 * 16 * 3);
-			batches.push(out.result.batchId!);
-			await expectConsistent();
-		}
+		const prefixes = ['RUN-A', 'RUN-B', 'RUN-C'];
+		const batches = await importEachWay(sql, shopId, {
+			label: 'summaries test',
+			readings: 6 * 16 * 3,
+			file: (way, i) => file(prefixes[i], prefixes[i].length * 7 + (way !== 'staged' ? 1 : 2)),
+			after: expectConsistent
+		});
 		const undone = await withShop(db, shopId, (tx) => undoBatch(tx, shopId, batches[0]));
 		expect(undone).toMatchObject({ ok: true, readingsRemoved: 6 * 16 * 3, headsRemoved: 6 });
 		await expectConsistent();

@@ -17,7 +17,8 @@ export const ARCHIVE_SKIPPED_TABLES: Record<string, string> = {
 	shop_signups: 'pending sign-ups: password hashes of people who are not members',
 	reading_summaries: 'derived from readings (recomputed by the database)',
 	reading_value_counts: 'derived from readings (recomputed by the database)',
-	reading_value_totals: 'derived from readings (recomputed by the database)'
+	reading_value_totals: 'derived from readings (recomputed by the database)',
+	reading_position_tallies: 'derived from readings and limits (recomputed by the database)'
 };
 /** Columns never written: secrets, even hashed. */
 export const ARCHIVE_SKIPPED_COLUMNS = new Set(['token_hash', 'password_hash']);

@@ -12,3 +12,4 @@ export * from './mail';
 export * from './access';
 export * from './stats';
 export * from './control';
+export * from './rates';
