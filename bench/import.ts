@@ -32,7 +32,7 @@ async function setUp() {
 		const [family] = await t`insert into families (shop_id, code, cylinders, intake_valves, exhaust_valves) values (${shop.id}, 'BENCH-8', ${CYL}, ${VALVES}, ${VALVES}) returning id`;
 		// Limit versions for every measurement of the file, each stage and side, two versions
 		// (the second from the middle of the file's dates), as a shop's families have them: the
-		// rates triggers (drizzle/0012) then judge every reading the import writes.
+		// rates triggers (drizzle/0013) then judge every reading the import writes.
 		await t`
 			insert into limits (shop_id, family_id, measurement, side, stage, min, max, effective_from)
 			select ${shop.id}, ${family.id}, v.m::measurement, sd::side, st::stage, v.mn, case when v.mx is not null then greatest(coalesce(v.mn, 0), v.mx * f) end, ef::date

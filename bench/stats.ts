@@ -113,7 +113,7 @@ const [consistency] = await system(
 );
 log(`summaries: ${consistency.groups} group-months; ${consistency.moments} moment rows, ${consistency.counts} count rows and ${consistency.totals} all-time count rows differ from a full recomputation`);
 
-// The position tallies (drizzle/0012) against the same figures from readings and limits: each
+// The position tallies (drizzle/0013) against the same figures from readings and limits: each
 // reading judged by a date-range join on the limit versions, each position's months chained by lag.
 const [positionConsistency] = await system(
 	(t) => t<{ rows: number; differ: number }[]>`

@@ -1,4 +1,4 @@
-// The valve-position tallies the rates read (reading_position_tallies, drizzle/0012) must equal a
+// The valve-position tallies the rates read (reading_position_tallies, drizzle/0013) must equal a
 // recomputation from readings and limits after every kind of write: inserts, updates of value,
 // time (across months), side (another series) and head (another family), deletes, a head's
 // cascaded delete, the CSV import each way into readings and its undo, and limit versions added,

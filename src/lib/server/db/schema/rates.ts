@@ -4,7 +4,7 @@ import { check, date, integer, pgTable, primaryKey, smallint, uuid } from 'drizz
 /**
  * What the rates of a measurement read (queries/stats/rates.ts): valve positions judged against
  * the limits of their reading's day, and how many failed, per shop × series × family × month ×
- * cylinder. Kept by statement-level triggers on readings and on limits (drizzle/0012: a new,
+ * cylinder. Kept by statement-level triggers on readings and on limits (drizzle/0013: a new,
  * edited or deleted limit version re-judges its family × series), derived data only, like the
  * summaries in stats.ts (no foreign keys, for the same reason).
  *

@@ -2,7 +2,7 @@
 // positions, released heads that came back.
 //
 // Measurement tallies read reading_position_tallies (schema/rates.ts, kept by the triggers of
-// drizzle/0012) for selections the summaries answer: no filter they do not keep (machinist,
+// drizzle/0013) for selections the summaries answer: no filter they do not keep (machinist,
 // customer, mileage) and a date range of whole calendar months (UTC) or none. Otherwise they read
 // readings, the whole range: a position seen both in a partial month and in a whole one must count
 // once, which a sum of the two parts cannot know.
@@ -30,7 +30,7 @@ function judgedPositions(shopId: string, sel: Selection, opts: { ranges?: readon
 	// the version in force on its day (UTC) by width_bucket over the versions' first instants, on
 	// a plain equality join: the planner then estimates the rows rightly and hashes both
 	// groupings, where a join on date ranges sorted every reading twice (about twice as slow).
-	// Bucket 0: before the first version, no limits to judge by. The triggers of drizzle/0012
+	// Bucket 0: before the first version, no limits to judge by. The triggers of drizzle/0013
 	// judge the same way.
 	return sql`
 		with lv as (
