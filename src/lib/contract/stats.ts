@@ -145,13 +145,18 @@ export type OutliersResponse = z.output<typeof OutliersResponse>;
 export const SideDifference = named(
 	'SideDifference',
 	z.strictObject({
-		test: z.enum(['fisher', 'chi_square']).meta({ description: "Fisher's exact test when an expected count is below 5, else Pearson's chi-square." }),
-		p: maybe,
-		statistic: maybe,
-		df: maybe,
-		minExpected: maybe,
-		difference: maybe.meta({ description: "intake rate − exhaust rate, with Newcombe's hybrid score interval." }),
-		ci95: Interval
+		method: z.literal('miettinen_nurminen').meta({
+			description:
+				"Miettinen & Nurminen's (1985) score test of intake share − exhaust share = 0, and the 95 % interval obtained by inverting the same test (every difference it does not reject at 5 %): the interval excludes 0 exactly when p < 0.05."
+		}),
+		difference: maybe.meta({ description: 'intake share − exhaust share, as a fraction (× 100 for percentage points).' }),
+		ci95: Interval.meta({ description: 'Miettinen–Nurminen 95 % interval of the difference, as fractions.' }),
+		statistic: maybe.meta({ description: 'The score statistic z at a difference of 0.' }),
+		p: z.number().gt(0).max(1).nullable().meta({ description: 'Two-sided p of no difference; never 0. When `pBelow`, the computed p is smaller and this is the bound 1e-15.' }),
+		pBelow: z.boolean().meta({ description: 'true: read "p < 1e-15".' }),
+		verdict: z
+			.enum(['intake_higher', 'exhaust_higher', 'not_clearly_different'])
+			.meta({ description: 'From the interval: above 0, below 0, or containing 0.' })
 	})
 );
 export type SideDifference = z.output<typeof SideDifference>;
@@ -162,10 +167,15 @@ export const RatesResponse = named(
 	'RatesResponse',
 	z.strictObject({
 		check: z.discriminatedUnion('kind', [
-			z.strictObject({ kind: z.literal('measurement'), measurement, stage }),
+			z.strictObject({
+				kind: z.literal('measurement'),
+				measurement,
+				stage,
+				stageDefaulted: z.boolean().meta({ description: 'true when the request named no stage: `stage` is then the default for the measurement (final for roughness and the seal tests, else as received).' })
+			}),
 			z.strictObject({ kind: z.literal('decision'), decision: z.enum(DECISION_KINDS) })
 		]),
-		unit: z.literal('valve position').meta({ description: 'What n counts.' }),
+		unit: z.literal('valve position').meta({ description: 'What n counts; `failures` counts the positions the check names: outside the limits of their day (a measurement), or given that decision (a decision).' }),
 		filters: EchoFilters,
 		overall: RateCell,
 		bySide: BySide,

@@ -2,7 +2,7 @@
 // client and server: the charts build their URLs from the same names.
 import { z } from 'zod';
 import { calendarDay, text } from './text';
-import { DECISION_KINDS, MEASUREMENTS, SIDES, STAGES, isUnit, type DecisionKind, type Measurement, type Unit } from '../measurements';
+import { DECISION_KINDS, MEASUREMENTS, SIDES, STAGES, isUnit, type DecisionKind, type Measurement, type Stage, type Unit } from '../measurements';
 
 /** Decision kinds, the same list as the database's decision_kind enum. */
 export const DECISION_KIND_NAMES = DECISION_KINDS;
@@ -124,6 +124,16 @@ const rateCheck = text('check').trim().transform((s, ctx): RateCheck => {
 	});
 	return z.NEVER;
 });
+
+/** Measurements taken only at the final check: their rates default to that stage. */
+const FINAL_ONLY: readonly Measurement[] = ['roughness_ra', 'vacuum_hold', 'fluid_hold'];
+
+/**
+ * The stage a measurement's rate is judged at when a request names none: final for the
+ * measurements only the final check takes, as received for the rest. The answer says when it
+ * was used (`check.stageDefaulted`), and the rates page always names the stage it asks for.
+ */
+export const defaultRateStage = (m: Measurement): Stage => (FINAL_ONLY.includes(m) ? 'final' : 'as_received');
 
 /** GET /api/v1/stats/rates */
 export const ratesQuerySchema = z
