@@ -199,6 +199,34 @@ export const ComebacksResponse = named(
 );
 export type ComebacksResponse = z.output<typeof ComebacksResponse>;
 
+export const YieldCell = named(
+	'YieldCell',
+	z.strictObject({
+		heads: count.meta({ description: 'Heads with a final check.' }),
+		passed: count.meta({ description: 'Of them, heads whose final check passed without a second round.' }),
+		rate: maybe.meta({ description: 'passed / heads; null when heads = 0.' }),
+		ci95: Interval.meta({ description: '95 % Wilson score interval.' })
+	})
+);
+export type YieldCell = z.output<typeof YieldCell>;
+
+const MachinistYield = z.strictObject({ machinist: z.string().meta({ description: 'Who took the head’s first final reading.' }), ...YieldCell.shape });
+
+export const FirstPassResponse = named(
+	'FirstPassResponse',
+	z.strictObject({
+		filters: EchoFilters,
+		unit: z.literal('head').meta({
+			description:
+				'A head passes first time when every first final reading of each position × measurement is within the limits of its day (none set: passes) and none was read again later (a retest is a second round). A value corrected in the entry grid replaces the one before and is not a second round.'
+		}),
+		overall: YieldCell,
+		families: z.array(z.strictObject({ family: FamilyLabel, ...YieldCell.shape, byMachinist: z.array(MachinistYield) })),
+		byMachinist: z.array(MachinistYield).meta({ description: 'Every family together, per machinist.' })
+	})
+);
+export type FirstPassResponse = z.output<typeof FirstPassResponse>;
+
 export const CapabilityResponse = named(
 	'CapabilityResponse',
 	z.strictObject({

@@ -163,6 +163,22 @@ export const comebacksQuerySchema = z
 	.superRefine(checkRanges);
 export type ComebacksQuery = z.infer<typeof comebacksQuerySchema>;
 
+/** GET /api/v1/stats/first-pass: heads whose final check passed without a second round. */
+export const firstPassQuerySchema = z
+	.strictObject({
+		family: filterShape.family,
+		/** The head's first final reading on or after (UTC day). */
+		from: filterShape.from,
+		to: filterShape.to,
+		/** Who took the head's first final reading. */
+		machinist: filterShape.machinist,
+		customer: filterShape.customer,
+		mileageMin: filterShape.mileageMin,
+		mileageMax: filterShape.mileageMax
+	})
+	.superRefine(checkRanges);
+export type FirstPassQuery = z.infer<typeof firstPassQuerySchema>;
+
 /** GET /api/v1/stats/capability: the shop's own rework against the final-stage limits. */
 export const capabilityQuerySchema = z
 	.strictObject({
