@@ -2,22 +2,8 @@
 // machinist who took the final check.
 import { sql, type SQL } from 'drizzle-orm';
 import type { Conn } from '../../db/scope';
+import type { Selection } from './selection';
 import { addDays, stamp } from './window';
-
-export interface FirstPassSelection {
-	/** null: every family of the shop. */
-	familyIds: string[] | null;
-	/** Series keys of the final stage (every measurement, both sides). */
-	keys: number[];
-	/** Inclusive UTC days of the head's first final reading. */
-	from: string | null;
-	to: string | null;
-	/** Who took the head's first final reading, case-insensitive. */
-	machinist: string | null;
-	customer: string | null;
-	mileageMin: number | null;
-	mileageMax: number | null;
-}
 
 export type FirstPassTally = {
 	familyId: string;
@@ -33,9 +19,10 @@ export type FirstPassTally = {
  * Per family × machinist: heads with final readings, and those that passed first time. A
  * position × measurement read again later at the final stage (a retest) is a second round; a
  * first reading outside the limits of its day fails the first pass (a reading without limits
- * on its day passes). The first final reading of a head names its machinist and its day.
+ * on its day passes). The first final reading of a head names its machinist and its day: the
+ * selection's `from`, `to` and `machinist` apply to that reading, `keys` are the final stage's.
  */
-export async function firstPassTallies(conn: Conn, shopId: string, sel: FirstPassSelection): Promise<FirstPassTally[]> {
+export async function firstPassTallies(conn: Conn, shopId: string, sel: Selection): Promise<FirstPassTally[]> {
 	const where: SQL[] = [sql`r.shop_id = ${shopId}`, sql`r.series_key = any(${sql.param(sel.keys)}::int2[])`];
 	if (sel.familyIds) where.push(sql`r.family_id = any(${sql.param(sel.familyIds)}::uuid[])`);
 	const head: SQL[] = [];

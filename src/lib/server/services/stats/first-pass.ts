@@ -7,7 +7,7 @@ import type { Conn } from '../../db/scope';
 import { seriesKeys } from '../../db/series';
 import { firstPassTallies, type FirstPassTally } from '../../queries/stats/first-pass';
 import { wilson } from '../../stats';
-import { echo, labelOf, resolveFamily } from './selection';
+import { echo, labelOf, resolveFamily, selection } from './selection';
 
 const FINAL_KEYS = MEASUREMENTS.flatMap((m) => seriesKeys(m, 'final')).sort((a, b) => a - b);
 
@@ -30,16 +30,7 @@ function byMachinist(rows: readonly FirstPassTally[]) {
 
 export async function firstPass(conn: Conn, shopId: string, q: FirstPassQuery): Promise<FirstPassResponse> {
 	const { family, byId } = await resolveFamily(conn, shopId, q.family);
-	const rows = await firstPassTallies(conn, shopId, {
-		familyIds: family ? [family.id] : null,
-		keys: FINAL_KEYS,
-		from: q.from ?? null,
-		to: q.to ?? null,
-		machinist: q.machinist ?? null,
-		customer: q.customer ?? null,
-		mileageMin: q.mileageMin ?? null,
-		mileageMax: q.mileageMax ?? null
-	});
+	const rows = await firstPassTallies(conn, shopId, selection(q, FINAL_KEYS, family));
 	const families = [...new Set(rows.map((r) => r.familyId))]
 		.map((id) => {
 			const mine = rows.filter((r) => r.familyId === id);
