@@ -5,7 +5,7 @@
 // gives differences in points, and neither it nor the rework-quality page with its first-pass
 // panel scrolls sideways.
 import type { Page } from 'playwright-core';
-import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
+import { beforeAll, describe, expect, inject, it } from 'vitest';
 import { demoSignIns } from '../../src/lib/server/demo/generate';
 import { DECISION_KINDS, MEASUREMENTS, STAGES } from '../../src/lib/measurements';
 import { chartsSettled, sharedBrowser, shot, signInWithPassword } from '../helpers/browser';
@@ -22,7 +22,6 @@ beforeAll(async () => {
 	const res = await api.signIn(people.engineer.email, people.engineer.password);
 	expect(res.status).toBeLessThan(400);
 });
-afterAll(() => undefined);
 
 async function get<T>(path: string): Promise<T> {
 	const res = await api.request('GET', path, { headers: { accept: 'application/json' } });
