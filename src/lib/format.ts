@@ -53,25 +53,31 @@ export function stamp(iso: string): string {
 	return `${iso.slice(0, 10)} ${iso.slice(11, 16)}`;
 }
 
-/** A p-value as printed: "p = 0.031", "p < 0.001". */
-export function pValue(p: number | null): string {
+/** The smallest p-value an answer gives as computed (the API's bound, `pBelow`). */
+export const P_BOUND = 1e-15;
+
+/**
+ * A p-value as printed, never "p = 0": "p = 0.31", "p = 0.031", "p = 4.0e-4" (the computed
+ * value), or "p < 1e-15" when the answer gives only that bound (`below`).
+ */
+export function pValue(p: number | null, below = false): string {
 	if (p === null) return 'p not defined';
-	if (p < 0.001) return 'p < 0.001';
+	if (below) return `p < ${P_BOUND.toExponential(0)}`;
+	if (p < 0.001) return `p = ${p.toExponential(1)}`;
 	return `p = ${p < 0.1 ? p.toFixed(3) : p.toFixed(2)}`;
 }
 
-/**
- * What a two-sided p-value says, in words: how often a difference at least this large would
- * turn up by chance if both groups really failed equally often.
- */
-export function pValueWords(p: number | null): string {
-	if (p === null) return 'There are too few positions to test the difference.';
-	const chance = p < 0.001 ? 'fewer than 1 in 1,000' : p < 0.01 ? `about ${Math.max(1, Math.round(p * 1000))} in 1,000` : `about ${Math.round(p * 100)} in 100`;
-	const verdict = p < 0.01 ? 'a real difference' : p < 0.05 ? 'probably a real difference' : 'not clearly different: chance alone could explain it';
-	return `If both sides failed equally often, a difference at least this large would turn up in ${chance} samples like this one — ${verdict}.`;
-}
+/** A minus sign for figures (U+2212), not a hyphen. */
+const signed = (x: number, decimals: number) => {
+	const s = Math.abs(x).toFixed(decimals);
+	return Number(s) === 0 ? s : `${x < 0 ? '−' : '+'}${s}`;
+};
 
-export const TEST_NAME = { fisher: 'Fisher’s exact test (two-sided)', chi_square: 'Pearson’s chi-square test (1 degree of freedom)' } as const;
+/** A difference of two shares (fractions) in percentage points: 0.068 → "+6.8 points". */
+export function fmtPoints(x: number | null | undefined, decimals = 1): string {
+	if (x === null || x === undefined || !Number.isFinite(x)) return MISSING;
+	return `${signed(x * 100, decimals)} points`;
+}
 
 const SHORT_DAY = new Intl.DateTimeFormat('en-GB', { day: 'numeric', month: 'short', year: '2-digit', timeZone: 'UTC' });
 const MONTH = new Intl.DateTimeFormat('en-GB', { month: 'short', year: 'numeric', timeZone: 'UTC' });
@@ -84,4 +90,36 @@ export function fmtAxisDay(d: Date | number): string {
 /** A month "2026-03" (or a date in it) as "Mar 2026". */
 export function fmtMonth(m: string | Date | number): string {
 	return MONTH.format(typeof m === 'string' ? new Date(`${m.slice(0, 7)}-01T00:00:00Z`) : m);
+}
+
+/** An interval of a difference in percentage points: "−9.9 to −0.3 points". */
+export function fmtPointsRange(low: number | null | undefined, high: number | null | undefined, decimals = 1): string {
+	if (low === null || low === undefined || high === null || high === undefined || !Number.isFinite(low) || !Number.isFinite(high)) return MISSING;
+	return `${signed(low * 100, decimals)} to ${signed(high * 100, decimals)} points`;
+}
+
+/** The test a difference of two shares is given with (the API's `method`). */
+export const DIFFERENCE_TEST = 'Miettinen–Nurminen score test (two-sided), interval by inverting the same test';
+
+/** What an intake-vs-exhaust difference says, from its interval (never from p alone). */
+export type DifferenceLike = {
+	difference: number | null;
+	ci95: { low: number | null; high: number | null };
+	verdict: 'intake_higher' | 'exhaust_higher' | 'not_clearly_different';
+};
+
+/**
+ * The intake-vs-exhaust difference in words, `counted` saying what the share counts ("outside
+ * the limits", "reused as is"): "Intake minus exhaust: +6.8 points (95 % interval 2.1 to 11.4
+ * points): intake positions are reused as is more often."
+ */
+export function sideDifferenceWords(d: DifferenceLike, counted: string): string {
+	const figures = `Intake minus exhaust: ${fmtPoints(d.difference)} (95 % interval ${fmtPointsRange(d.ci95.low, d.ci95.high)})`;
+	const verdict =
+		d.verdict === 'intake_higher'
+			? `intake positions are ${counted} more often than exhaust positions`
+			: d.verdict === 'exhaust_higher'
+				? `exhaust positions are ${counted} more often than intake positions`
+				: 'not clearly different (the interval includes no difference)';
+	return `${figures}: ${verdict}.`;
 }

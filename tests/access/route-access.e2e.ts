@@ -52,6 +52,7 @@ const EXPECTED: Record<string, Record<string, Expect>> = {
 	'/api/v1/check': { GET: 'viewer' },
 	'/api/v1/stats/capability': { GET: 'viewer' },
 	'/api/v1/stats/comebacks': { GET: 'viewer' },
+	'/api/v1/stats/first-pass': { GET: 'viewer' },
 	'/api/v1/stats/compare': { GET: 'viewer' },
 	'/api/v1/stats/control': { GET: 'viewer' },
 	'/api/v1/stats/pchart': { GET: 'viewer' },

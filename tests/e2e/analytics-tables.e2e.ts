@@ -100,23 +100,23 @@ describe('failure rates', () => {
 		await page.getByTestId('rates-by-side').waitFor();
 		const sides = await cellTexts(page, 'rates-by-side', 1);
 		expect(sides).toEqual(['Intake', 'Exhaust']);
-		await page.getByTestId('side-difference').getByText(/Fisher’s exact test|Pearson’s chi-square test/).waitFor();
-		expect(await page.getByTestId('side-difference').innerText()).toMatch(/p [=<] [\d.]+/);
+		await page.getByTestId('side-difference').getByText(/Miettinen–Nurminen score test/).waitFor();
+		expect(await page.getByTestId('side-difference').innerText()).toMatch(/p [=<] [\d.e-]+/);
 		expect(await page.locator('[data-testid="rates-by-family"] tbody tr').count()).toBeGreaterThan(1);
 		expect(await page.locator('[data-testid="rates-by-cylinder"] tbody tr').count()).toBeGreaterThan(1);
 		await shot(page, 'tables-rates');
 
 		const overall = await page.getByTestId('overall-rate').innerText();
-		await page.getByLabel('Count a position as failed when').selectOption('decision:replace_guide');
+		await page.getByLabel('Check', { exact: true }).selectOption('decision:replace_guide');
 		await page.waitForURL((u) => u.searchParams.get('check') === 'decision:replace_guide');
-		await page.getByText('Valve positions where the decision was “Guide replaced”').waitFor();
+		await page.getByText('Share of valve positions given a new guide').waitFor();
 		await expect.poll(() => page.getByTestId('overall-rate').innerText()).not.toBe(overall);
 		// A decision has no stage: the stage filter goes away.
 		expect(await page.getByLabel('Stage').count()).toBe(0);
 
 		// Sorting a client-side table: the family table by its intake rate.
-		await page.locator('[data-testid="rates-by-family"] th', { hasText: 'Intake rate' }).getByRole('button').click();
-		await expect.poll(async () => page.locator('[data-testid="rates-by-family"] th[aria-sort="descending"], [data-testid="rates-by-family"] th[aria-sort="ascending"]').innerText()).toMatch(/Intake rate/);
+		await page.locator('[data-testid="rates-by-family"] th', { hasText: 'Intake share' }).getByRole('button').click();
+		await expect.poll(async () => page.locator('[data-testid="rates-by-family"] th[aria-sort="descending"], [data-testid="rates-by-family"] th[aria-sort="ascending"]').innerText()).toMatch(/Intake share/);
 		await page.close();
 	});
 });

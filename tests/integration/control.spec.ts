@@ -153,10 +153,10 @@ describe('monthly tallies of positions outside the limits of their day (p-chart)
 				r(1, 2, 1.9, '2025-01-20'),
 				r(2, 1, 0.9, '2025-01-21'),
 				r(2, 2, 1.4, '2025-01-21'),
-				// A January position read again in February at 1.9 (outside February's 1.8): it fails,
-				// and still counts in January, its first month → January 2 of 4.
+				// A January position read again in February at 1.9 (outside February's 1.8): judged again
+				// in February, where it fails; January keeps its own verdict → January 1 of 4.
 				r(1, 1, 1.9, '2025-02-03'),
-				// February: 2 positions; 1.9 is outside 1.8 → 1 of 2.
+				// February: 3 positions judged by February's readings; two are outside 1.8 → 2 of 3.
 				r(3, 1, 1.9, '2025-02-04'),
 				r(3, 2, 1.7, '2025-02-04')
 			]);
@@ -164,16 +164,19 @@ describe('monthly tallies of positions outside the limits of their day (p-chart)
 		const sel = { familyIds: [famA], keys: [seriesKey('seat_width', 'final', 'exhaust')], from: null, to: null, machinist: null, customer: null, mileageMin: null, mileageMax: null };
 		const tallies = await inA((t) => monthlyPositionTallies(t, shopA, sel));
 		expect(tallies).toEqual([
-			{ familyId: famA, month: '2025-01', n: 4, failures: 2 },
-			{ familyId: famA, month: '2025-02', n: 2, failures: 1 }
+			{ familyId: famA, month: '2025-01-01', n: 4, failures: 1 },
+			{ familyId: famA, month: '2025-02-01', n: 3, failures: 2 }
 		]);
-		// [C] p̄ = 3/6 = 0.5; n = 4: 0.5 ± 3·√(0.25/4) = 0.5 ± 0.75 → 0 … 1; n = 2: likewise clipped.
+		// [C] p̄ = 3/7 = 0.4286; n = 4: 0.4286 ± 3·√(0.4286·0.5714/4) = 0.4286 ± 0.7423 → 0 … 1;
+		// n = 3: 0.4286 ± 0.8571 → 0 … 1 (clipped at both ends).
 		const p = await inA((t) => pchart(t, shopA, { family: 'TEST-4', side: 'exhaust', measurement: 'seat_width', stage: 'final' }));
-		expect(p).toMatchObject({ pBar: 0.5, n: 6, failures: 3, side: 'exhaust' });
-		expect(p.months).toEqual([
-			{ month: '2025-01', n: 4, failures: 2, p: 0.5, lcl: 0, ucl: 1, beyond: false },
-			{ month: '2025-02', n: 2, failures: 1, p: 0.5, lcl: 0, ucl: 1, beyond: false }
+		expect(p).toMatchObject({ n: 7, failures: 3, side: 'exhaust' });
+		expect(p.pBar).toBeCloseTo(3 / 7, 12);
+		expect(p.months).toMatchObject([
+			{ month: '2025-01', n: 4, failures: 1, p: 0.25, lcl: 0, ucl: 1, beyond: false },
+			{ month: '2025-02', n: 3, failures: 2, lcl: 0, ucl: 1, beyond: false }
 		]);
+		expect(p.months[1].p).toBeCloseTo(2 / 3, 12);
 		expect(await inB((t) => monthlyPositionTallies(t, shopB, { ...sel, familyIds: [famA] }))).toEqual([]);
 	});
 });

@@ -309,17 +309,19 @@ describe('outliers', () => {
 });
 
 describe('rates', () => {
-	it('positions over the limit by side: Fisher for small counts (tea tasting, p = 0.4857), Wilson intervals', async () => {
+	it('positions over the limit by side: Miettinen–Nurminen z² = X²·(N − 1)/N on the tea table, Wilson intervals', async () => {
 		const r = await tx((t) => rates(t, shopId, { check: { kind: 'measurement', measurement: 'clearance' }, family: 'TEST-6' }));
-		expect(r.check).toEqual({ kind: 'measurement', measurement: 'clearance', stage: 'as_received' });
+		expect(r.check).toEqual({ kind: 'measurement', measurement: 'clearance', stage: 'as_received', stageDefaulted: true });
 		expect(r.bySide.intake).toMatchObject({ failures: 3, n: 4, rate: 0.75 });
 		expect(r.bySide.exhaust).toMatchObject({ failures: 1, n: 4, rate: 0.25 });
 		const w = wilson(3, 4);
 		expect(r.bySide.intake.ci95).toEqual({ low: w.low, high: w.high });
-		// [[3, 1], [1, 3]]: two-sided Fisher p = 0.4857 (R fisher.test help, Agresti 1990 p. 61;
-		// docs/REFERENCES.md B3).
-		expect(r.sideDifference?.test).toBe('fisher');
-		expect(r.sideDifference?.p).toBeCloseTo(0.485714, 6);
+		// [[3, 1], [1, 3]]: Pearson X² = 2 (docs/REFERENCES.md B3), so the Miettinen–Nurminen z at 0
+		// is √(2 · 7/8) = 1.3229 and p = erfc(z/√2) = 0.18588 [C]; the interval contains 0.
+		expect(r.sideDifference?.method).toBe('miettinen_nurminen');
+		expect(r.sideDifference?.statistic).toBeCloseTo(Math.sqrt(1.75), 12);
+		expect(r.sideDifference?.p).toBeCloseTo(0.185877, 6);
+		expect(r.sideDifference?.verdict).toBe('not_clearly_different');
 		expect(r.sideDifference?.difference).toBe(0.5);
 		expect(r.byCylinder.filter((c) => c.side === 'intake').map((c) => [c.cylinder, c.failures, c.n])).toEqual([
 			[1, 0, 1],
@@ -399,11 +401,12 @@ describe('rates', () => {
 		expect(r.overall).toMatchObject({ failures: 15, n: 148 });
 		expect(r.overall.ci95.low).toBeCloseTo(0.0624, 4);
 		expect(r.overall.ci95.high).toBeCloseTo(0.1605, 4);
-		// Expected failures 7.5 per side ≥ 5: Pearson's X² = N(ad − bc)²/(r1·r2·c1·c2)
-		// = 148·(10·69 − 64·5)²/(74·74·15·133) (by hand).
-		expect(r.sideDifference?.test).toBe('chi_square');
-		expect(r.sideDifference?.statistic).toBeCloseTo((148 * (10 * 69 - 64 * 5) ** 2) / (74 * 74 * 15 * 133), 12);
-		expect(r.sideDifference?.statistic).toBe(chiSquare2x2([[10, 64], [5, 69]]).statistic);
+		// Pearson's X² = N(ad − bc)²/(r1·r2·c1·c2) = 148·(10·69 − 64·5)²/(74·74·15·133) (by hand);
+		// the Miettinen–Nurminen z² at 0 is X²·(N − 1)/N (Miettinen & Nurminen 1985).
+		const x2 = (148 * (10 * 69 - 64 * 5) ** 2) / (74 * 74 * 15 * 133);
+		expect(r.sideDifference?.statistic ?? 0).toBeCloseTo(Math.sqrt((x2 * 147) / 148), 12);
+		expect(x2).toBeCloseTo(chiSquare2x2([[10, 64], [5, 69]]).statistic as number, 12);
+		expect(r.sideDifference?.verdict).toBe('not_clearly_different');
 	});
 
 	it('comebacks: released heads of A that came back (1 of 2)', async () => {

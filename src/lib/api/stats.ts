@@ -2,7 +2,7 @@
 // helper that builds their URLs. The shapes are the contract's ($lib/contract, zod schemas that
 // also generate the OpenAPI document); every number that is undefined for the data (an SD of one
 // reading, a rate of zero positions) is null, never NaN.
-import type { CheckResponse, ComebacksResponse, CompareResponse, ControlResponse, PChartResponse, DistributionResponse, OutliersResponse, RatesResponse, CapabilityResponse, WearResponse } from '../contract';
+import type { CheckResponse, ComebacksResponse, CompareResponse, ControlResponse, PChartResponse, DistributionResponse, FirstPassResponse, OutliersResponse, RatesResponse, CapabilityResponse, WearResponse } from '../contract';
 import { getJson } from './client';
 
 export type {
@@ -20,6 +20,7 @@ export type {
 	DistributionSummary,
 	EchoFilters,
 	FamilyLabel,
+	FirstPassResponse,
 	HistogramBin,
 	LimitInfo,
 	OutlierItem,
@@ -29,7 +30,8 @@ export type {
 	RateCell,
 	RatesResponse,
 	SideDifference,
-	WearResponse
+	WearResponse,
+	YieldCell
 } from '../contract';
 
 type Params = Record<string, string | number | null | undefined>;
@@ -48,6 +50,7 @@ export const getCheck = (p: Params, f?: typeof fetch) => getJson<CheckResponse>(
 export const getOutliers = (p: Params, f?: typeof fetch) => getJson<OutliersResponse>(statsUrl('stats/outliers', p), f);
 export const getRates = (p: Params, f?: typeof fetch) => getJson<RatesResponse>(statsUrl('stats/rates', p), f);
 export const getComebacks = (p: Params, f?: typeof fetch) => getJson<ComebacksResponse>(statsUrl('stats/comebacks', p), f);
+export const getFirstPass = (p: Params, f?: typeof fetch) => getJson<FirstPassResponse>(statsUrl('stats/first-pass', p), f);
 export const getCapability = (p: Params, f?: typeof fetch) => getJson<CapabilityResponse>(statsUrl('stats/capability', p), f);
 export const getControl = (p: Params, f?: typeof fetch) => getJson<ControlResponse>(statsUrl('stats/control', p), f);
 export const getPChart = (p: Params, f?: typeof fetch) => getJson<PChartResponse>(statsUrl('stats/pchart', p), f);

@@ -146,13 +146,18 @@ export type OutliersResponse = z.output<typeof OutliersResponse>;
 export const SideDifference = named(
 	'SideDifference',
 	z.strictObject({
-		test: z.enum(['fisher', 'chi_square']).meta({ description: "Fisher's exact test when an expected count is below 5, else Pearson's chi-square." }),
-		p: maybe,
-		statistic: maybe,
-		df: maybe,
-		minExpected: maybe,
-		difference: maybe.meta({ description: "intake rate − exhaust rate, with Newcombe's hybrid score interval." }),
-		ci95: Interval
+		method: z.literal('miettinen_nurminen').meta({
+			description:
+				"Miettinen & Nurminen's (1985) score test of intake share − exhaust share = 0, and the 95 % interval obtained by inverting the same test (every difference it does not reject at 5 %): the interval excludes 0 exactly when p < 0.05."
+		}),
+		difference: maybe.meta({ description: 'intake share − exhaust share, as a fraction (× 100 for percentage points).' }),
+		ci95: Interval.meta({ description: 'Miettinen–Nurminen 95 % interval of the difference, as fractions.' }),
+		statistic: maybe.meta({ description: 'The score statistic z at a difference of 0.' }),
+		p: z.number().gt(0).max(1).nullable().meta({ description: 'Two-sided p of no difference; never 0. When `pBelow`, the computed p is smaller and this is the bound 1e-15.' }),
+		pBelow: z.boolean().meta({ description: 'true: read "p < 1e-15".' }),
+		verdict: z
+			.enum(['intake_higher', 'exhaust_higher', 'not_clearly_different'])
+			.meta({ description: 'From the interval: above 0, below 0, or containing 0.' })
 	})
 );
 export type SideDifference = z.output<typeof SideDifference>;
@@ -163,10 +168,15 @@ export const RatesResponse = named(
 	'RatesResponse',
 	z.strictObject({
 		check: z.discriminatedUnion('kind', [
-			z.strictObject({ kind: z.literal('measurement'), measurement, stage }),
+			z.strictObject({
+				kind: z.literal('measurement'),
+				measurement,
+				stage,
+				stageDefaulted: z.boolean().meta({ description: 'true when the request named no stage: `stage` is then the default for the measurement (final for roughness and the seal tests, else as received).' })
+			}),
 			z.strictObject({ kind: z.literal('decision'), decision: z.enum(DECISION_KINDS) })
 		]),
-		unit: z.literal('valve position').meta({ description: 'What n counts.' }),
+		unit: z.literal('valve position').meta({ description: 'What n counts; `failures` counts the positions the check names: outside the limits of their day (a measurement), or given that decision (a decision).' }),
 		filters: EchoFilters,
 		overall: RateCell,
 		bySide: BySide,
@@ -189,6 +199,34 @@ export const ComebacksResponse = named(
 	})
 );
 export type ComebacksResponse = z.output<typeof ComebacksResponse>;
+
+export const YieldCell = named(
+	'YieldCell',
+	z.strictObject({
+		heads: count.meta({ description: 'Heads with a final check.' }),
+		passed: count.meta({ description: 'Of them, heads whose final check passed without a second round.' }),
+		rate: maybe.meta({ description: 'passed / heads; null when heads = 0.' }),
+		ci95: Interval.meta({ description: '95 % Wilson score interval.' })
+	})
+);
+export type YieldCell = z.output<typeof YieldCell>;
+
+const MachinistYield = z.strictObject({ machinist: z.string().meta({ description: 'Who took the head’s first final reading.' }), ...YieldCell.shape });
+
+export const FirstPassResponse = named(
+	'FirstPassResponse',
+	z.strictObject({
+		filters: EchoFilters,
+		unit: z.literal('head').meta({
+			description:
+				'A head passes first time when every first final reading of each position × measurement is within the limits of its day (none set: passes) and none was read again later (a retest is a second round). A value corrected in the entry grid replaces the one before and is not a second round.'
+		}),
+		overall: YieldCell,
+		families: z.array(z.strictObject({ family: FamilyLabel, ...YieldCell.shape, byMachinist: z.array(MachinistYield) })),
+		byMachinist: z.array(MachinistYield).meta({ description: 'Every family together, per machinist.' })
+	})
+);
+export type FirstPassResponse = z.output<typeof FirstPassResponse>;
 
 export const CapabilityResponse = named(
 	'CapabilityResponse',

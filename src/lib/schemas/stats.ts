@@ -3,7 +3,7 @@
 import { z } from 'zod';
 import { calendarDay, text } from './text';
 import { parseRules, RULE_IDS, WESTERN_ELECTRIC, type RuleId } from '../domain/control-rules';
-import { DECISION_KINDS, MEASUREMENTS, SIDES, STAGES, isUnit, type DecisionKind, type Measurement, type Unit } from '../measurements';
+import { DECISION_KINDS, MEASUREMENTS, SIDES, STAGES, isUnit, type DecisionKind, type Measurement, type Stage, type Unit } from '../measurements';
 
 /** Decision kinds, the same list as the database's decision_kind enum. */
 export const DECISION_KIND_NAMES = DECISION_KINDS;
@@ -126,6 +126,16 @@ const rateCheck = text('check').trim().transform((s, ctx): RateCheck => {
 	return z.NEVER;
 });
 
+/** Measurements taken only at the final check: their rates default to that stage. */
+const FINAL_ONLY: readonly Measurement[] = ['roughness_ra', 'vacuum_hold', 'fluid_hold'];
+
+/**
+ * The stage a measurement's rate is judged at when a request names none: final for the
+ * measurements only the final check takes, as received for the rest. The answer says when it
+ * was used (`check.stageDefaulted`), and the rates page always names the stage it asks for.
+ */
+export const defaultRateStage = (m: Measurement): Stage => (FINAL_ONLY.includes(m) ? 'final' : 'as_received');
+
 /** GET /api/v1/stats/rates */
 export const ratesQuerySchema = z
 	.strictObject({ ...filterShape, check: rateCheck })
@@ -153,6 +163,22 @@ export const comebacksQuerySchema = z
 	})
 	.superRefine(checkRanges);
 export type ComebacksQuery = z.infer<typeof comebacksQuerySchema>;
+
+/** GET /api/v1/stats/first-pass: heads whose final check passed without a second round. */
+export const firstPassQuerySchema = z
+	.strictObject({
+		family: filterShape.family,
+		/** The head's first final reading on or after (UTC day). */
+		from: filterShape.from,
+		to: filterShape.to,
+		/** Who took the head's first final reading. */
+		machinist: filterShape.machinist,
+		customer: filterShape.customer,
+		mileageMin: filterShape.mileageMin,
+		mileageMax: filterShape.mileageMax
+	})
+	.superRefine(checkRanges);
+export type FirstPassQuery = z.infer<typeof firstPassQuerySchema>;
 
 /** GET /api/v1/stats/capability: the shop's own rework against the final-stage limits. */
 export const capabilityQuerySchema = z

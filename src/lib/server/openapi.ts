@@ -10,6 +10,7 @@ import {
 	CapabilityResponse,
 	CheckResponse,
 	ComebacksResponse,
+	FirstPassResponse,
 	CompareResponse,
 	contract,
 	ControlResponse,
@@ -38,6 +39,7 @@ import { READINGS_MAX_PAGE_SIZE, readingsQuerySchema } from '$lib/schemas/readin
 import {
 	DESCRIBE_MAX_VALUES,
 	capabilityQuerySchema,
+	firstPassQuerySchema,
 	checkQuerySchema,
 	comebacksQuerySchema,
 	compareQuerySchema,
@@ -246,8 +248,9 @@ export const OPENAPI = {
 		},
 		'/api/v1/stats/rates': {
 			get: operation('rates', {
-				summary: 'Failure or repair rates by side, family and cylinder, intake against exhaust',
-				description: "Per valve position: failures, n, rate and the 95 % Wilson interval; the intake-vs-exhaust difference with Fisher's exact test (two-sided) when an expected count is under 5, else Pearson's chi-square, naming the test used.",
+				summary: 'Shares of valve positions outside limits or given a decision, by side, family and cylinder, intake against exhaust',
+				description:
+					"Per valve position: the positions the check counts (`failures`: outside the limits of their day, or given the decision), n, the share and its 95 % Wilson interval; the intake-vs-exhaust difference with the Miettinen–Nurminen score test and the 95 % interval obtained by inverting it, so the verdict (from the interval) and p always agree; p is never 0 (below 1e-15 it is that bound, `pBelow`). Without `stage` a measurement is judged at its default stage and the answer says so (`check.stageDefaulted`).",
 				role: 'viewer',
 				tag: 'Statistics',
 				query: ratesQuerySchema as unknown as ZodObjectLike,
@@ -257,6 +260,18 @@ export const OPENAPI = {
 		},
 		'/api/v1/stats/comebacks': {
 			get: operation('comebacks', { summary: 'Released heads and how many came back, per family', role: 'viewer', tag: 'Statistics', query: comebacksQuerySchema as unknown as ZodObjectLike, example: 'from=2026-01-01', responses: { '200': answer(ComebacksResponse, 'Comeback rates with Wilson intervals.'), '404': noFamily } })
+		},
+		'/api/v1/stats/first-pass': {
+			get: operation('firstPass', {
+				summary: 'First-pass yield: heads whose final check passed without a second round, per family and machinist',
+				description:
+					'A head passes first time when the first final reading of every position × measurement is within the limits of its day and none was read again (a retest is a second round). Shares with 95 % Wilson intervals; the machinist is who took the head’s first final reading, the dates are that reading’s day.',
+				role: 'viewer',
+				tag: 'Statistics',
+				query: firstPassQuerySchema as unknown as ZodObjectLike,
+				example: 'family=ALDER-4&from=2026-01-01',
+				responses: { '200': answer(FirstPassResponse, 'First-pass yield with Wilson intervals.'), '404': noFamily }
+			})
 		},
 		'/api/v1/stats/capability': {
 			get: operation('capability', {

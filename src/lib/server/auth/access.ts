@@ -62,6 +62,7 @@ export const POLICY: Record<string, RoutePolicy> = {
 	'/api/v1/check': { GET: 'viewer' },
 	'/api/v1/stats/capability': { GET: 'viewer' },
 	'/api/v1/stats/comebacks': { GET: 'viewer' },
+	'/api/v1/stats/first-pass': { GET: 'viewer' },
 	'/api/v1/stats/compare': { GET: 'viewer' },
 	'/api/v1/stats/control': { GET: 'viewer' },
 	'/api/v1/stats/pchart': { GET: 'viewer' },

@@ -7,7 +7,10 @@ import {
 	chiSquareTest,
 	compareProportions,
 	fisherExact2x2,
+	mnDifference,
 	newcombeDifference,
+	P_FLOOR,
+	restrictedMle,
 	wilson,
 	Z95,
 	type Table2x2
@@ -204,39 +207,148 @@ group('chi-square (Pearson, no continuity correction)', () => {
 	});
 });
 
+group('mnDifference (Miettinen & Nurminen 1985 score test and its inverted interval)', () => {
+	// docs/REFERENCES.md B10. Newcombe, R. G. (1998b) Stat Med 17:873–890, Table II, method 6 (Miettinen–Nurminen), 95 %.
+	// The paper itself was not read: (a), (b) and (g) as quoted [S] in GSK-Biostatistics/cicalc
+	// tests/testthat/test-prop_ci_mn.R ("matches the values in the paper"); (d) as quoted [S] in
+	// PeteLaud/ratesci tests/testthat/test3.R ("Newcombe RD example (d), Miettinen-Nurminen").
+	const published: Array<[string, number, number, number, number, number, number]> = [
+		['(a)', 56, 70, 48, 80, 0.0528, 0.3382],
+		['(b)', 9, 10, 3, 10, 0.17, 0.8406],
+		['(d)', 5, 56, 0, 29, -0.0326, 0.1933],
+		['(g)', 10, 10, 0, 20, 0.7156, 1.0]
+	];
+	for (const [ex, x1, n1, x2, n2, low, high] of published) {
+		it(`Newcombe 1998b Table II ${ex} method 6: ${x1}/${n1} − ${x2}/${n2} → (${low}, ${high})`, () => {
+			const r = mnDifference(x1, n1, x2, n2);
+			expect(r.difference as number).toBeCloseTo(x1 / n1 - x2 / n2, 14);
+			expect(r.low as number).toBeCloseTo(low, 4);
+			expect(r.high as number).toBeCloseTo(high, 4);
+		});
+	}
+	it('the other Table II examples, recomputed here: (c) 0.0342–0.8534, (e) −0.1658–0.2844, (f) ±0.2879, (h) 0.6636–1', () => {
+		// [C] this implementation only: the published method-6 column for (c), (e), (f), (h) was not found in a stored copy
+		const cases: Array<[number, number, number, number, number, number]> = [
+			[6, 7, 2, 7, 0.0342, 0.8534],
+			[0, 10, 0, 20, -0.1658, 0.2844],
+			[0, 10, 0, 10, -0.2879, 0.2879],
+			[10, 10, 0, 10, 0.6636, 1]
+		];
+		for (const [x1, n1, x2, n2, low, high] of cases) {
+			const r = mnDifference(x1, n1, x2, n2);
+			expect(r.low as number).toBeCloseTo(low, 4);
+			expect(r.high as number).toBeCloseTo(high, 4);
+		}
+	});
+	it('at δ = 0 the statistic is Pearson X² · (N − 1)/N: 56/70 vs 48/80 → z = 2.6413, p = 0.00826', () => {
+		// Miettinen & Nurminen 1985 (the N/(N − 1) factor) [M]; the Pearson z 2.65 at δ = 0 for this
+		// table is [S] in GSK-Biostatistics/cicalc tests/testthat/_snaps/prop_ci_diff.md (Mee, "At 0
+		// the statistic is 2.65"); X² from chiSquare2x2 (docs/REFERENCES.md B3) [C]
+		const r = mnDifference(56, 70, 48, 80);
+		const x2 = chiSquare2x2([
+			[56, 14],
+			[48, 32]
+		]).statistic as number;
+		expect(Math.sqrt(x2)).toBeCloseTo(2.65, 2);
+		expect((r.statistic as number) ** 2).toBeCloseTo((x2 * 149) / 150, 10);
+		expect(r.statistic as number).toBeCloseTo(2.6413232722941262, 10);
+		expect(r.p as number).toBeCloseTo(0.00825828792938074, 12); // erfc(z/√2) [C]
+		expect(r.verdict).toBe('higher');
+		expect(r.pBelow).toBe(false);
+	});
+	it('restrictedMle maximises the likelihood on the line p1 − p2 = δ (checked against a fine grid)', () => {
+		// [C] the closed-form root of Farrington & Manning (1990) against brute force
+		const ll = (x1: number, n1: number, x2: number, n2: number, p1: number, p2: number) => {
+			const t = (x: number, n: number, p: number) => (x > 0 ? x * Math.log(p) : 0) + (n - x > 0 ? (n - x) * Math.log(1 - p) : 0);
+			return t(x1, n1, p1) + t(x2, n2, p2);
+		};
+		const tables: Array<[number, number, number, number, number]> = [
+			[56, 70, 48, 80, 0.1],
+			[9, 10, 3, 10, -0.2],
+			[5, 56, 0, 29, 0.15],
+			[0, 10, 0, 20, 0.05],
+			[7, 25, 2, 25, 0.3]
+		];
+		for (const [x1, n1, x2, n2, delta] of tables) {
+			const [p1, p2] = restrictedMle(x1, n1, x2, n2, delta);
+			expect(p1 - p2).toBeCloseTo(delta, 12);
+			let best = -Infinity;
+			const lo = Math.max(0, delta);
+			const hi = Math.min(1, 1 + delta);
+			for (let i = 1; i < 20000; i++) {
+				const q1 = lo + ((hi - lo) * i) / 20000;
+				best = Math.max(best, ll(x1, n1, x2, n2, q1, q1 - delta));
+			}
+			expect(ll(x1, n1, x2, n2, p1, p2)).toBeGreaterThanOrEqual(best - 1e-9);
+		}
+	});
+	it('test and interval agree on every table with n ≤ 10 and on 200 random ones up to n = 5,000: the interval excludes 0 exactly when p < 0.05', () => {
+		// By construction (mnDifference's doc); checked exhaustively on small tables and at random on large ones
+		for (let n1 = 1; n1 <= 10; n1++) {
+			for (let n2 = 1; n2 <= 10; n2++) {
+				for (let x1 = 0; x1 <= n1; x1++) {
+					for (let x2 = 0; x2 <= n2; x2++) {
+						const r = mnDifference(x1, n1, x2, n2);
+						const excludes = (r.low as number) > 0 || (r.high as number) < 0;
+						expect(excludes).toBe((r.p as number) < 0.05);
+						expect(r.low as number).toBeLessThanOrEqual(r.difference as number);
+						expect(r.high as number).toBeGreaterThanOrEqual(r.difference as number);
+					}
+				}
+			}
+		}
+		const count = fc.integer({ min: 1, max: 5000 });
+		fc.assert(
+			fc.property(count, count, fc.double({ min: 0, max: 1, noNaN: true }), fc.double({ min: 0, max: 1, noNaN: true }), (n1, n2, f1, f2) => {
+				const r = mnDifference(Math.round(f1 * n1), n1, Math.round(f2 * n2), n2);
+				const excludes = (r.low as number) > 0 || (r.high as number) < 0;
+				expect(excludes).toBe((r.p as number) < 0.05);
+				expect(r.verdict).toBe((r.low as number) > 0 ? 'higher' : (r.high as number) < 0 ? 'lower' : 'unclear');
+				expect(r.p as number).toBeGreaterThan(0);
+			}),
+			{ numRuns: 200, seed: 20261203 }
+		);
+	}, 30_000);
+	it('a p-value is never 0: 3000/3000 vs 0/3000 gives the bound 1e-15 with pBelow', () => {
+		// erfc underflows to 0 beyond z ≈ 38; P_FLOOR is the stated bound
+		const r = mnDifference(3000, 3000, 0, 3000);
+		expect(r.p).toBe(P_FLOOR);
+		expect(r.pBelow).toBe(true);
+		expect(r.verdict).toBe('higher');
+		expect(r.high).toBe(1);
+	});
+	it('equal shares: z = 0, p = 1; an empty group gives nulls; bad counts throw', () => {
+		// Definition; STYLE.md §2.6 (null for undefined)
+		expect(mnDifference(5, 10, 5, 10)).toMatchObject({ difference: 0, statistic: 0, p: 1, verdict: 'unclear' });
+		expect(mnDifference(1, 10, 0, 0)).toEqual({ difference: null, low: null, high: null, statistic: null, p: null, pBelow: false, verdict: null });
+		expect(() => mnDifference(11, 10, 0, 5)).toThrow(RangeError);
+		expect(() => mnDifference(1, 10, 0, 5, 1)).toThrow(RangeError);
+	});
+	it('the issue\'s contradiction cannot happen: an interval of −9.9 to −0.3 points comes with p < 0.05', () => {
+		// 50/400 vs 70/400 (a −5.0 point difference): the MN interval excludes 0 and p < 0.05 together [C]
+		const r = mnDifference(50, 400, 70, 400);
+		expect(r.high as number).toBeLessThan(0);
+		expect(r.p as number).toBeLessThan(0.05);
+		expect(r.verdict).toBe('lower');
+	});
+});
+
 group('compareProportions', () => {
-	it('40/200 vs 20/200: all expected ≥ 5 → chi-square X² = 7.8431, p = 0.005101', () => {
-		// SciPy chi2_contingency([[40,160],[20,180]], correction=False) [C]
-		const r = compareProportions(40, 200, 20, 200);
-		expect(r.test).toBe('chi_square');
-		expect(r.statistic as number).toBeCloseTo(7.843137254901961, 10);
-		expect(r.p as number).toBeCloseTo(0.005101399646004978, 10);
-		expect(r.df).toBe(1);
-		expect(r.minExpected).toBe(30);
-		expect(r.difference).toBeCloseTo(0.1, 14);
-	});
-	it('5/50 vs 1/50: an expected count of 3 → Fisher p = 0.2044', () => {
-		// SciPy fisher_exact([[5,45],[1,49]]) = 0.20440158503099357 [C]
-		const r = compareProportions(5, 50, 1, 50);
-		expect(r.test).toBe('fisher');
-		expect(r.p as number).toBeCloseTo(0.20440158503099357, 12);
-		expect(r.statistic).toBeNull();
-		expect(r.minExpected).toBe(3);
-	});
-	it('carries the Wilson intervals and the Newcombe difference interval', () => {
-		// Newcombe 1998b Table II (a): 56/70 − 48/80 → 0.0524, 0.3339 [S]; Wilson per Newcombe 1998a
+	it('carries the Wilson intervals and the Miettinen–Nurminen difference', () => {
+		// Newcombe 1998a Table I (Wilson) and 1998b Table II (a) method 6: 0.0528, 0.3382 [S]
 		const r = compareProportions(56, 70, 48, 80);
 		expect(r.rate1).toEqual(wilson(56, 70));
 		expect(r.rate2).toEqual(wilson(48, 80));
-		expect(r.differenceLow as number).toBeCloseTo(0.0524, 4);
-		expect(r.differenceHigh as number).toBeCloseTo(0.3339, 4);
+		expect(r.low as number).toBeCloseTo(0.0528, 4);
+		expect(r.high as number).toBeCloseTo(0.3382, 4);
+		expect(r.verdict).toBe('higher');
 	});
-	it('an empty group: Fisher with p = 1, difference null', () => {
-		// Definition: with n2 = 0 only one table is possible; the difference is undefined
+	it('an empty group: difference, p and verdict null', () => {
+		// Definition: with n2 = 0 the difference is undefined
 		const r = compareProportions(3, 10, 0, 0);
-		expect(r.test).toBe('fisher');
-		expect(r.p).toBe(1);
 		expect(r.difference).toBeNull();
+		expect(r.p).toBeNull();
+		expect(r.verdict).toBeNull();
 		expect(r.rate2.rate).toBeNull();
 	});
 });

@@ -1,9 +1,11 @@
-// Failure rates: Wilson score intervals, the Newcombe interval for a difference of two
-// rates, Fisher's exact test and Pearson's chi-square test for 2×2 tables.
+// Shares of valve positions or heads: Wilson score intervals, the Newcombe and the
+// Miettinen–Nurminen intervals for a difference of two shares, the Miettinen–Nurminen score
+// test, Fisher's exact test and Pearson's chi-square test for 2×2 tables.
 //
-// Distributions come from @stdlib (hypergeometric pmf, chi-square cdf); nothing here
+// Distributions come from @stdlib (hypergeometric pmf, chi-square cdf, erfc); nothing here
 // evaluates a distribution by its own series.
 
+import erfc from '@stdlib/math-base-special-erfc';
 import chisquareCdf from '@stdlib/stats-base-dists-chisquare-cdf';
 import hypergeometricPmf from '@stdlib/stats-base-dists-hypergeometric-pmf';
 import { assertCount } from './input';
@@ -168,56 +170,125 @@ export function chiSquare2x2(table: Table2x2): ChiSquareResult {
 	return chiSquareTest(table);
 }
 
-/** Expected counts below this send compareProportions to Fisher's exact test (Cochran's rule). */
-export const MIN_EXPECTED_FOR_CHI_SQUARE = 5;
+/**
+ * The smallest p-value given as computed. Below it the normal tail of an asymptotic test says
+ * nothing more (its own approximation error is larger), and far enough out it underflows to 0:
+ * such a p is reported as this bound, with `pBelow` set, and read "p < 1e-15".
+ */
+export const P_FLOOR = 1e-15;
 
-export interface ProportionComparison {
-	test: 'fisher' | 'chi_square';
-	/** Two-sided p of the chosen test. */
-	p: number | null;
-	/** Pearson X² when the chi-square test was used, else null. */
-	statistic: number | null;
-	df: number | null;
-	/** Smallest expected cell count; null when there are no observations. */
-	minExpected: number | null;
-	rate1: WilsonInterval;
-	rate2: WilsonInterval;
-	/** rate1 − rate2 with Newcombe's method-10 interval. */
-	difference: number | null;
-	differenceLow: number | null;
-	differenceHigh: number | null;
+/**
+ * Maximum-likelihood estimates of p1 and p2 under the constraint p1 − p2 = δ, for x1/n1 and
+ * x2/n2: the one root in range of the likelihood equations' cubic, in the closed form of
+ * Farrington & Manning (1990, Stat Med 9:1447–1454, §2), which Miettinen & Nurminen (1985,
+ * Stat Med 4:213–226, Appendix 1) solve the same way.
+ */
+export function restrictedMle(x1: number, n1: number, x2: number, n2: number, delta: number): [number, number] {
+	const t = n2 / n1;
+	const a = 1 + t;
+	const b = -(1 + t + x1 / n1 + t * (x2 / n2) + delta * (t + 2));
+	const c = delta * delta + delta * (2 * (x1 / n1) + t + 1) + x1 / n1 + t * (x2 / n2);
+	const d = -(x1 / n1) * delta * (1 + delta);
+	const v = b ** 3 / (3 * a) ** 3 - (b * c) / (6 * a * a) + d / (2 * a);
+	const u = Math.sign(v) * Math.sqrt(Math.max(0, b ** 2 / (3 * a) ** 2 - c / (3 * a)));
+	// u = 0 only at a triple root, where the root is −b/3a; rounding can push v/u³ past ±1.
+	const w = u === 0 ? Math.PI / 2 : (Math.PI + Math.acos(Math.min(1, Math.max(-1, v / u ** 3)))) / 3;
+	const p1 = Math.min(1, Math.max(0, 2 * u * Math.cos(w) - b / (3 * a)));
+	const p2 = Math.min(1, Math.max(0, p1 - delta));
+	return [p1, p2];
 }
 
 /**
- * Compares two failure rates x1/n1 and x2/n2. Uses Fisher's exact test when any expected
- * count of the 2×2 table is below 5, otherwise Pearson's chi-square (no continuity correction).
+ * Miettinen & Nurminen's (1985) score statistic for H0: p1 − p2 = δ,
+ * z = (p̂1 − p̂2 − δ) / √V, V = [p̃1(1 − p̃1)/n1 + p̃2(1 − p̃2)/n2] · N/(N − 1), with p̃ the
+ * restricted estimates. V = 0 (a boundary δ) gives 0 when the numerator is 0, else ±∞.
  */
-export function compareProportions(
-	x1: number,
-	n1: number,
-	x2: number,
-	n2: number,
-	z: number = Z95
-): ProportionComparison {
-	const rate1 = wilson(x1, n1, z);
-	const rate2 = wilson(x2, n2, z);
-	const table: Table2x2 = [
-		[x1, n1 - x1],
-		[x2, n2 - x2]
-	];
-	const chi = chiSquare2x2(table);
-	const minExpected = chi.expected === null ? null : Math.min(...chi.expected.flat());
-	const diff = newcombeDifference(x1, n1, x2, n2, z);
-	const common = {
-		minExpected,
-		rate1,
-		rate2,
-		difference: diff.difference,
-		differenceLow: diff.low,
-		differenceHigh: diff.high
+export function mnStatistic(x1: number, n1: number, x2: number, n2: number, delta: number): number {
+	const num = x1 / n1 - x2 / n2 - delta;
+	const [p1, p2] = restrictedMle(x1, n1, x2, n2, delta);
+	const N = n1 + n2;
+	const v = ((p1 * (1 - p1)) / n1 + (p2 * (1 - p2)) / n2) * (N / (N - 1));
+	if (Math.abs(num) < 1e-15) return 0;
+	return v > 0 ? num / Math.sqrt(v) : num > 0 ? Infinity : -Infinity;
+}
+
+/** Two-sided normal p of a z statistic, 2Φ(−|z|) = erfc(|z|/√2), before any floor. */
+const twoSided = (z: number) => erfc(Math.abs(z) / Math.SQRT2);
+
+export interface ScoreDifference {
+	/** x1/n1 − x2/n2; null when either n is 0 (and every field below with it). */
+	difference: number | null;
+	/** The confidence interval: every δ the test below does not reject at 1 − level. */
+	low: number | null;
+	high: number | null;
+	/** The score statistic z at δ = 0. */
+	statistic: number | null;
+	/** Two-sided p of δ = 0; never 0: at most P_FLOOR when `pBelow`. */
+	p: number | null;
+	/** The computed p is below P_FLOOR; `p` holds the bound. */
+	pBelow: boolean;
+	/** From the interval: 'higher' when it lies above 0 (p1 > p2), 'lower' below, else 'unclear'. */
+	verdict: 'higher' | 'lower' | 'unclear' | null;
+}
+
+/**
+ * The Miettinen–Nurminen (1985) score test of p1 − p2 = 0 and the interval obtained by
+ * inverting the same test: {δ : p(δ) ≥ 1 − level}, found by bisection on each side of the
+ * estimate. Each search first tests δ = 0 when 0 lies in its bracket, and returns the accepted
+ * end of its bracket, so the interval excludes 0 exactly when p(0) < 1 − level: the verdict,
+ * taken from the interval, can never contradict the p-value (the test is the interval's own).
+ * Newcombe (1998b, method 6) found this interval's coverage close to nominal.
+ */
+export function mnDifference(x1: number, n1: number, x2: number, n2: number, level = 0.95): ScoreDifference {
+	assertCount(x1, 'x1');
+	assertCount(n1, 'n1');
+	assertCount(x2, 'x2');
+	assertCount(n2, 'n2');
+	if (x1 > n1 || x2 > n2) throw new RangeError('a count of events cannot exceed its n');
+	if (!(level > 0 && level < 1)) throw new RangeError('level must be between 0 and 1');
+	if (n1 === 0 || n2 === 0) return { difference: null, low: null, high: null, statistic: null, p: null, pBelow: false, verdict: null };
+	const alpha = 1 - level;
+	const d = x1 / n1 - x2 / n2;
+	const pAt = (delta: number) => twoSided(mnStatistic(x1, n1, x2, n2, delta));
+	const accepted = (delta: number) => pAt(delta) >= alpha;
+	/** Bisection between a rejected and an accepted δ; returns the accepted end. */
+	const edge = (rejected: number, inside: number): number => {
+		if (rejected < 0 !== inside < 0 && rejected !== 0 && inside !== 0) {
+			if (accepted(0)) inside = 0;
+			else rejected = 0;
+		}
+		for (let i = 0; i < 200 && Math.abs(inside - rejected) > 1e-12; i++) {
+			const mid = (inside + rejected) / 2;
+			if (accepted(mid)) inside = mid;
+			else rejected = mid;
+		}
+		return inside;
 	};
-	if (minExpected === null || minExpected < MIN_EXPECTED_FOR_CHI_SQUARE || chi.statistic === null) {
-		return { test: 'fisher', p: fisherExact2x2(table).p, statistic: null, df: null, ...common };
-	}
-	return { test: 'chi_square', p: chi.p, statistic: chi.statistic, df: chi.df, ...common };
+	const low = d <= -1 || accepted(-1) ? -1 : edge(-1, d);
+	const high = d >= 1 || accepted(1) ? 1 : edge(1, d);
+	const z0 = mnStatistic(x1, n1, x2, n2, 0);
+	const raw = twoSided(z0);
+	const pBelow = raw < P_FLOOR;
+	return {
+		difference: d,
+		low,
+		high,
+		statistic: z0,
+		p: pBelow ? P_FLOOR : Math.min(1, raw),
+		pBelow,
+		verdict: low > 0 ? 'higher' : high < 0 ? 'lower' : 'unclear'
+	};
+}
+
+export interface ProportionComparison extends ScoreDifference {
+	rate1: WilsonInterval;
+	rate2: WilsonInterval;
+}
+
+/**
+ * Compares two shares x1/n1 and x2/n2: each with its Wilson interval, their difference with
+ * the Miettinen–Nurminen score test and the interval that inverts it (mnDifference).
+ */
+export function compareProportions(x1: number, n1: number, x2: number, n2: number, z: number = Z95): ProportionComparison {
+	return { rate1: wilson(x1, n1, z), rate2: wilson(x2, n2, z), ...mnDifference(x1, n1, x2, n2) };
 }

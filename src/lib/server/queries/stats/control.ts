@@ -1,10 +1,9 @@
 // Control charts' SQL: a family × series' stored baseline, the readings a baseline is computed
-// from, and the monthly tallies of valve positions outside the limits of their day (p-chart).
+// from. The p-chart's monthly tallies come from the position tallies (queries/stats/rates.ts).
 import { and, eq, sql } from 'drizzle-orm';
 import type { Measurement, Side, Stage } from '../../../measurements';
 import type { Conn } from '../../db/scope';
 import { controlBaselines, type ControlBaseline } from '../../db/schema';
-import { readingsWhere, type Selection } from './selection';
 import { addDays, stamp } from './window';
 
 export interface SeriesOfFamily {
@@ -74,46 +73,4 @@ export async function baselineReadings(
 		where r.shop_id = ${shopId} and r.series_key = ${key}::int2 and r.family_id = ${familyId}::uuid ${dates}
 		order by r.measured_at, r.id
 		${'first' in span ? sql`limit ${span.first}` : sql``}`);
-}
-
-export type MonthlyTally = {
-	familyId: string;
-	/** YYYY-MM (UTC). */
-	month: string;
-	/** Valve positions judged in the month. */
-	n: number;
-	failures: number;
-};
-
-/**
- * Valve positions (head × series × cylinder × valve) with readings of the selection that had
- * limits on their day, and how many had any reading outside those limits, per family × month of
- * the position's first reading. The same judgement as measurementTallies (queries/stats/rates.ts):
- * each reading meets the limit version in force on its day (UTC).
- */
-export async function monthlyPositionTallies(conn: Conn, shopId: string, sel: Selection): Promise<MonthlyTally[]> {
-	return conn.execute<MonthlyTally>(sql`
-		with lv as (
-			select family_id, lapmark_series(measurement, stage, side) as series_key,
-				array_agg((effective_from::timestamp at time zone 'UTC') order by effective_from) as starts,
-				array_agg(coalesce(min, '-Infinity') order by effective_from) as mins,
-				array_agg(coalesce(max, 'Infinity') order by effective_from) as maxs
-			from limits where shop_id = ${shopId}
-			group by 1, 2
-		),
-		judged as (
-			select r.head_id, r.family_id, r.series_key, r.cylinder, r.valve, r.value, r.measured_at, lv.mins, lv.maxs,
-				width_bucket(r.measured_at, lv.starts) as version
-			from readings r
-			join lv on lv.family_id = r.family_id and lv.series_key = r.series_key
-			where ${readingsWhere(shopId, sel)}
-		),
-		pos as (
-			select family_id, lapmark_month(min(measured_at)) as month, bool_or(value < mins[version] or value > maxs[version]) as failed
-			from judged where version > 0
-			group by head_id, family_id, series_key, cylinder, valve
-		)
-		select family_id as "familyId", to_char(month, 'YYYY-MM') as month, count(*)::int as n,
-			count(*) filter (where failed)::int as failures
-		from pos group by family_id, month order by 1, 2`);
 }

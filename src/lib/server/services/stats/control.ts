@@ -154,7 +154,7 @@ export async function pchart(conn: Conn, shopId: string, q: PChartQuery): Promis
 		pBar: c.pBar,
 		n: c.n,
 		failures: c.failures,
-		months: c.points.map((p, i) => ({ month: kept[i].month, ...p }))
+		months: c.points.map((p, i) => ({ month: kept[i].month.slice(0, 7), ...p }))
 	};
 }
 

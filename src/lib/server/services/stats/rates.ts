@@ -1,33 +1,35 @@
-// Failure or repair rates per valve position (with Wilson intervals and the intake-vs-exhaust
-// test), and comeback rates per released head.
+// Shares of valve positions per check (outside the limits, or given a decision) with Wilson
+// intervals and the intake-vs-exhaust difference (Miettinen–Nurminen test and the interval that
+// inverts it), and comeback rates per released head.
 import type { ComebacksResponse, RateCell, RatesResponse, SideDifference } from '../../../contract';
-import { SIDES, type Measurement, type Side, type Stage } from '../../../measurements';
+import { SIDES, type Side, type Stage } from '../../../measurements';
+import { defaultRateStage } from '../../../schemas/stats';
 import type { ComebacksQuery, RatesQuery } from '../../../schemas/stats';
 import type { Conn } from '../../db/scope';
 import { seriesKeys } from '../../db/series';
 import { comebackTallies, decisionTallies, measurementTallies, type PositionTally } from '../../queries/stats';
-import { compareProportions, wilson } from '../../stats';
+import { mnDifference, wilson } from '../../stats';
 import { echo, headSelection, labelOf, resolveFamily, selection } from './selection';
 
-/** Measurements taken only at the final check: their rates default to that stage. */
-const FINAL_ONLY: readonly Measurement[] = ['roughness_ra', 'vacuum_hold', 'fluid_hold'];
 
 function cell(failures: number, n: number): RateCell {
 	const w = wilson(failures, n);
 	return { failures, n, rate: w.rate, ci95: { low: w.low, high: w.high } };
 }
 
+const VERDICT = { higher: 'intake_higher', lower: 'exhaust_higher', unclear: 'not_clearly_different' } as const;
+
 function difference(intake: RateCell, exhaust: RateCell): SideDifference | null {
 	if (intake.n === 0 || exhaust.n === 0) return null;
-	const c = compareProportions(intake.failures, intake.n, exhaust.failures, exhaust.n);
+	const c = mnDifference(intake.failures, intake.n, exhaust.failures, exhaust.n);
 	return {
-		test: c.test,
-		p: c.p,
-		statistic: c.statistic,
-		df: c.df,
-		minExpected: c.minExpected,
+		method: 'miettinen_nurminen',
 		difference: c.difference,
-		ci95: { low: c.differenceLow, high: c.differenceHigh }
+		ci95: { low: c.low, high: c.high },
+		statistic: c.statistic,
+		p: c.p,
+		pBelow: c.pBelow,
+		verdict: VERDICT[c.verdict ?? 'unclear']
 	};
 }
 
@@ -51,8 +53,8 @@ export async function rates(conn: Conn, shopId: string, q: RatesQuery): Promise<
 	let check: RatesResponse['check'];
 	if (q.check.kind === 'measurement') {
 		const m = q.check.measurement;
-		const stage: Stage = q.stage ?? (FINAL_ONLY.includes(m) ? 'final' : 'as_received');
-		check = { kind: 'measurement', measurement: m, stage };
+		const stage: Stage = q.stage ?? defaultRateStage(m);
+		check = { kind: 'measurement', measurement: m, stage, stageDefaulted: q.stage === undefined };
 		tallies = await measurementTallies(conn, shopId, selection(q, seriesKeys(m, stage, q.side), family));
 	} else {
 		check = { kind: 'decision', decision: q.check.decision };
