@@ -299,7 +299,7 @@ export const OPENAPI = {
 			get: operation('pchart', {
 				summary: 'p-chart: monthly share of valve positions outside the limits of their day',
 				description:
-					'A valve position fails when any of its readings of the series is outside the limits in force on its day; it counts in the month of its first reading. Limits p̄ ± 3·√(p̄(1 − p̄)/nᵢ) for each month’s n (NIST/SEMATECH e-Handbook §6.3.3.2), the lower one no lower than 0. Without `side`, both sides.',
+					'A valve position fails when any of its readings of the series is outside the limits in force on its day; it counts in every month whose readings judge it (by those readings). Limits p̄ ± 3·√(p̄(1 − p̄)/nᵢ) for each month’s n (NIST/SEMATECH e-Handbook §6.3.3.2), the lower one no lower than 0. Without `side`, both sides.',
 				role: 'viewer',
 				tag: 'Statistics',
 				query: pchartQuerySchema as unknown as ZodObjectLike,
