@@ -2,11 +2,12 @@
 // helper that builds their URLs. The shapes are the contract's ($lib/contract, zod schemas that
 // also generate the OpenAPI document); every number that is undefined for the data (an SD of one
 // reading, a rate of zero positions) is null, never NaN.
-import type { CheckResponse, ComebacksResponse, CompareResponse, ControlResponse, DistributionResponse, OutliersResponse, RatesResponse, CapabilityResponse, WearResponse } from '../contract';
+import type { CheckResponse, ComebacksResponse, CompareResponse, ControlResponse, DistributionResponse, OutliersResponse, RatesResponse, CapabilityResponse, CapabilityMachinistsResponse, WearResponse } from '../contract';
 import { getJson } from './client';
 
 export type {
 	CapabilityResponse,
+	CapabilityMachinistsResponse,
 	CheckResponse,
 	ComebacksResponse,
 	CompareResponse,
@@ -47,5 +48,6 @@ export const getOutliers = (p: Params, f?: typeof fetch) => getJson<OutliersResp
 export const getRates = (p: Params, f?: typeof fetch) => getJson<RatesResponse>(statsUrl('stats/rates', p), f);
 export const getComebacks = (p: Params, f?: typeof fetch) => getJson<ComebacksResponse>(statsUrl('stats/comebacks', p), f);
 export const getCapability = (p: Params, f?: typeof fetch) => getJson<CapabilityResponse>(statsUrl('stats/capability', p), f);
+export const getCapabilityByMachinist = (p: Params, f?: typeof fetch) => getJson<CapabilityMachinistsResponse>(statsUrl('stats/capability/machinists', p), f);
 export const getControl = (p: Params, f?: typeof fetch) => getJson<ControlResponse>(statsUrl('stats/control', p), f);
 export const getWear = (p: Params, f?: typeof fetch) => getJson<WearResponse>(statsUrl('stats/wear', p), f);

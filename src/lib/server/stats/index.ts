@@ -48,8 +48,10 @@ export {
 } from './rates';
 export {
 	averageMovingRange,
+	bissellInterval,
 	CAPABLE_CPK,
 	capability,
+	capabilityLevel,
 	capabilityIndices,
 	capabilityVerdict,
 	CONTROL_CHART_CONSTANTS,
@@ -63,6 +65,7 @@ export {
 	type CapabilityVerdict,
 	type SpecLimits
 } from './capability';
+export { andersonDarling, phi, phiInverse, type NormalityTest } from './normality';
 export { controlChart, type ChartPoint, type ControlChart, type ControlPoint } from './control';
 export { linearFit, type BandPoint, type LinearFit } from './regression';
 export {

@@ -3,7 +3,7 @@
 // (the statistics benchmark) can use the engine without the app's client.
 import { inShop } from '../../db';
 import type { Conn } from '../../db/scope';
-import { capabilityStudy } from './capability';
+import { capabilityByMachinist, capabilityStudy } from './capability';
 import { checkReading } from './check';
 import { control } from './control';
 import { compare, distribution } from './distribution';
@@ -24,5 +24,6 @@ export const outliersFor = scoped(outliers);
 export const ratesFor = scoped(rates);
 export const comebacksFor = scoped(comebacks);
 export const capabilityFor = scoped(capabilityStudy);
+export const capabilityByMachinistFor = scoped(capabilityByMachinist);
 export const controlFor = scoped(control);
 export const wearFor = scoped(wear);

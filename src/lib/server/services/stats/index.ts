@@ -8,7 +8,7 @@ export { compare, distribution } from './distribution';
 export { checkReading } from './check';
 export { outliers } from './outliers';
 export { comebacks, rates } from './rates';
-export { capabilityStudy } from './capability';
+export { capabilityByMachinist, capabilityStudy } from './capability';
 export { control } from './control';
 export { wear } from './wear';
 export { describeValues } from './describe';
