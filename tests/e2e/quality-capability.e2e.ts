@@ -5,7 +5,7 @@
 // fits a 1024×768 and a 1366×900 screen without sideways scrolling.
 import { describe, expect, inject, it } from 'vitest';
 import type { Page } from 'playwright-core';
-import { chartsSettled, sharedBrowser, shot, signInWithPassword } from '../helpers/browser';
+import { chartsSettled, SCREENSHOTS, sharedBrowser, shot, signInWithPassword } from '../helpers/browser';
 
 const baseURL = inject('baseURL');
 const shared = sharedBrowser();
@@ -61,6 +61,9 @@ describe('/quality capability, as an engineer', () => {
 				expect(byMachinist.machinists.length).toBeGreaterThan(1);
 				expect(byMachinist.machinists.reduce((s: number, m: { n: number }) => s + m.n, 0)).toBe(api.n);
 				const card = page.getByTestId('capability-machinists');
+				// The chart: one dot per machinist on Cpk's scale, with its interval as a bar.
+				expect(await card.locator('svg circle').count()).toBe(byMachinist.machinists.length);
+				await card.screenshot({ path: `${SCREENSHOTS}quality-machinists-chart-${width}.png` });
 				await card.getByRole('button', { name: 'Table' }).click();
 				const rows = card.locator('tbody tr');
 				expect(await rows.count()).toBe(byMachinist.machinists.length);
