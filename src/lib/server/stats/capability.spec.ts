@@ -169,6 +169,8 @@ group('observed and predicted share outside', () => {
 		expect(o).toEqual({ below: 1, above: 1, count: 2, share: 2 / 7 });
 		expect(observedIndex({ below: 135, above: 0, count: 135, share: 0.00135 }, 100000) as number).toBeCloseTo(1, 3);
 		expect(observedIndex({ below: 0, above: 0, count: 0, share: 0 }, 100)).toBeNull();
+		// every reading outside: finite, taken as 99.5 of 100 (−Φ⁻¹(0.995)/3 = −0.8586) [C]
+		expect(observedIndex({ below: 100, above: 0, count: 100, share: 1 }, 100) as number).toBeCloseTo(-0.8586, 4);
 		// a normal (16, 2) against 8…20: Φ(−4) + Φ(−2) [C]
 		const p = predictedOutside(16, 2, { lsl: 8, usl: 20 });
 		expect(p.below as number).toBeCloseTo(3.167124183e-5, 12);

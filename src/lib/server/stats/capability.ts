@@ -247,7 +247,8 @@ export function observedOutside(values: readonly number[], limits: SpecLimits): 
  * counts; a side without a reading outside does not lower it (null when neither has one).
  */
 export function observedIndex(o: ObservedOutside, n: number): number | null {
-	const sides = [o.below, o.above].filter((k) => k > 0).map((k) => -phiInverse(k / n) / 3);
+	// Every reading outside one limit would make −Φ⁻¹(1) infinite: take it as n − ½ of n, a finite worst case.
+	const sides = [o.below, o.above].filter((k) => k > 0).map((k) => -phiInverse(Math.min(k, n - 0.5) / n) / 3);
 	return sides.length > 0 ? Math.min(...sides) : null;
 }
 
