@@ -33,7 +33,7 @@ import { demoSignIns } from '../src/lib/server/demo/generate';
 import { createDb } from '../src/lib/server/db/client';
 import { withShop } from '../src/lib/server/db/scope';
 import { RULE_IDS } from '../src/lib/domain/control-rules';
-import { checkReading, compare, control, distribution, pchart, rates } from '../src/lib/server/services/stats';
+import { capabilityByMachinist, capabilityStudy, checkReading, compare, control, distribution, pchart, rates } from '../src/lib/server/services/stats';
 import { seedScaled } from './seed';
 
 const url = process.env.BENCH_DATABASE_URL;
@@ -157,6 +157,17 @@ const lit = (s: string) => `'${s}'`;
 const keyFinal = seriesKey('clearance', 'final', 'exhaust');
 const finalEnum = `r.measurement = 'clearance' and r.stage = 'final' and r.side = 'exhaust'`;
 const enumSeries = (side: string) => `measurement = 'clearance' and stage = 'as_received' and side = '${side}'`;
+/** Capability's series: the final exhaust vacuum hold (bounded at 100 %, skewed: the percentile method). */
+const keyCap = seriesKey('vacuum_hold', 'final', 'exhaust');
+const enumCap = `measurement = 'vacuum_hold' and stage = 'final' and side = 'exhaust'`;
+/** Capability's aggregate: the series in time order, its moments, mean moving range, extreme quantiles and readings below the limit. */
+const capabilitySql = (series: string, perMachinist = false) => `
+		with r as (select value, measured_at, id, measured_by from readings where shop_id = ${lit(ids.shop)} and family_id = ${lit(ids.family)} and ${series}),
+		o as (select value, measured_by, abs(value - lag(value) over (${perMachinist ? 'partition by measured_by ' : ''}order by measured_at, id)) as mr from r)
+		select ${perMachinist ? 'measured_by, ' : ''}count(*) as n, avg(value) as mean, stddev_samp(value) as sd, avg(mr) as mr_bar,
+			percentile_cont(array[0.00135, 0.5, 0.99865]) within group (order by value) as q,
+			count(*) filter (where value < 90) as below
+		from o${perMachinist ? ' group by 1 order by 1' : ''}`;
 
 /**
  * Every cell of the rates answer from per family × side × cylinder counts `cells`: those, and the
@@ -174,6 +185,8 @@ const rateCells = (cells: string) => `
 
 /** The bare SQL of each route's aggregate, with the series given as `where` text. */
 const bare = {
+	capability: (series: string) => capabilitySql(series),
+	capabilityMachinists: (series: string) => capabilitySql(series, true),
 	distribution: (series: string) => `
 		with r as (select value from readings where shop_id = ${lit(ids.shop)} and family_id = ${lit(ids.family)} and ${series}),
 		s as (select count(*) as n, avg(value) as mean, stddev_samp(value) as sd, min(value) as mn, max(value) as mx,
@@ -328,6 +341,8 @@ const wholeTable = `
 		group by s.shop_id, s.family_id, s.series_key, s.n, s.mean, s.sd, s.mn, s.mx, s.q`;
 
 const byKey = {
+	capability: `series_key = ${keyCap}`,
+	capabilityMachinists: `series_key = ${keyCap}`,
 	distribution: `series_key = ${keyAR('exhaust')}`,
 	compare: `series_key = ${keyAR('exhaust')}`,
 	rates: `r.series_key in (${keyAR('intake')}, ${keyAR('exhaust')})`,
@@ -336,6 +351,8 @@ const byKey = {
 	pchart: `r.series_key = ${keyFinal}`
 };
 const byEnum = {
+	capability: enumCap,
+	capabilityMachinists: enumCap,
 	distribution: enumSeries('exhaust'),
 	compare: enumSeries('exhaust'),
 	rates: `r.measurement = 'clearance' and r.stage = 'as_received'`,
@@ -385,7 +402,9 @@ const routes = {
 	rates: '/api/v1/stats/rates?check=clearance',
 	check: '/api/v1/check?family=ALDER-4&side=exhaust&measurement=clearance&value=0.13',
 	control: '/api/v1/stats/control?family=ALDER-4&side=exhaust&measurement=clearance&stage=final&limit=1000&rules=all',
-	pchart: '/api/v1/stats/pchart?family=ALDER-4&side=exhaust&measurement=clearance&stage=final'
+	pchart: '/api/v1/stats/pchart?family=ALDER-4&side=exhaust&measurement=clearance&stage=final',
+	capability: '/api/v1/stats/capability?family=ALDER-4&side=exhaust&measurement=vacuum_hold',
+	capabilityMachinists: '/api/v1/stats/capability/machinists?family=ALDER-4&side=exhaust&measurement=vacuum_hold'
 } as const;
 type Route = keyof typeof routes;
 
@@ -459,7 +478,9 @@ try {
 		rates: () => withShop(app.db, ids.shop, (t) => rates(t, ids.shop, { check: { kind: 'measurement', measurement: 'clearance' } })),
 		check: () => withShop(app.db, ids.shop, (t) => checkReading(t, ids.shop, { family: 'ALDER-4', side: 'exhaust', stage: 'as_received', measurement: 'clearance', value: 0.13 })),
 		control: () => withShop(app.db, ids.shop, (t) => control(t, ids.shop, { family: 'ALDER-4', side: 'exhaust', stage: 'final', measurement: 'clearance', limit: 1000, rules: [...RULE_IDS] })),
-		pchart: () => withShop(app.db, ids.shop, (t) => pchart(t, ids.shop, { family: 'ALDER-4', side: 'exhaust', stage: 'final', measurement: 'clearance' }))
+		pchart: () => withShop(app.db, ids.shop, (t) => pchart(t, ids.shop, { family: 'ALDER-4', side: 'exhaust', stage: 'final', measurement: 'clearance' })),
+		capability: () => withShop(app.db, ids.shop, (t) => capabilityStudy(t, ids.shop, { family: 'ALDER-4', side: 'exhaust', measurement: 'vacuum_hold', stage: 'final' })),
+		capabilityMachinists: () => withShop(app.db, ids.shop, (t) => capabilityByMachinist(t, ids.shop, { family: 'ALDER-4', side: 'exhaust', measurement: 'vacuum_hold', stage: 'final' }))
 	};
 	const inProcess = async (f: () => Promise<unknown>) => {
 		for (let i = 0; i < 3; i++) await f();
@@ -485,7 +506,9 @@ try {
 			const n = Math.floor(runs / blocks) + (b < runs % blocks ? 1 : 0);
 			t.http.push(...(await httpTimes(routes[name], n)));
 			t.sql.push(...psqlTimes(bare[name](byKey[name]), { runs: n }));
-			if (name in summaryBare) t.summary.push(...psqlTimes(summaryBare[name as keyof typeof summaryBare], { runs: n }));
+			// Capability, control and the p-chart keep no summaries of their own.
+			const summaryQ = (summaryBare as Partial<Record<Route, string>>)[name];
+			if (summaryQ) t.summary.push(...psqlTimes(summaryQ, { runs: n }));
 		}
 		const ms = median(t.http);
 		const sqlMs = median(t.sql);
@@ -522,7 +545,8 @@ try {
 	console.log(`selections: distribution and check ${selected.distribution.toLocaleString('en-US')} readings (one family × series), control and pchart ${selected.final.toLocaleString('en-US')} (ALDER-4 final exhaust clearance; control charts the latest 1,000), compare ${selected.compare.toLocaleString('en-US')} (every family, one series), rates ${selected.rates.toLocaleString('en-US')} (every family, two series)`);
 	if (wholeTableMs !== null) console.log(`for scale: that raw aggregate over all ${readings.toLocaleString('en-US')} readings, per shop × family × series: ${wholeTableMs} ms (median of 3)`);
 	console.log(`(GET /api/v1/me, the token check alone: ${floorMs} ms)`);
-	console.log(`targets: distribution, compare, rates, control, pchart under 300 ms and within 1.5× of raw SQL; check under 20 ms; rates under 20 ms and within 1.0× of its summary SQL`);
+	console.log(`capability: the final exhaust vacuum hold of ALDER-4 in time order (whole and per machinist), against its raw aggregate (moments, moving ranges, extreme quantiles)`);
+	console.log(`targets: distribution, compare, rates, control, pchart, capability under 300 ms and within 1.5× of raw SQL; check under 20 ms; rates under 20 ms and within 1.0× of its summary SQL`);
 
 	// ------------------------------------------------------------------------------------------
 	// 5. What the triggers cost

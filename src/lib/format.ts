@@ -123,3 +123,21 @@ export function sideDifferenceWords(d: DifferenceLike, counted: string): string 
 				: 'not clearly different (the interval includes no difference)';
 	return `${figures}: ${verdict}.`;
 }
+
+/** A capability index to 2 decimals ("1.24"). */
+export function fmtIndex(x: number | null | undefined): string {
+	return x === null || x === undefined || !Number.isFinite(x) ? MISSING : x.toFixed(2);
+}
+
+/** An interval of two indices, "1.20–1.28". */
+export function fmtIndexInterval(ci: { lower: number; upper: number } | null | undefined): string {
+	return ci ? `${fmtIndex(ci.lower)}–${fmtIndex(ci.upper)}` : MISSING;
+}
+
+/** A share that may be tiny, with the decimals it needs: "2.4 %", "0.04 %", "0.001 %", "< 0.001 %", "0 %". */
+export function fmtShare(x: number | null | undefined): string {
+	if (x === null || x === undefined || !Number.isFinite(x)) return MISSING;
+	if (x === 0) return '0 %';
+	if (x < 0.00001) return '< 0.001 %';
+	return fmtPct(x, x < 0.0001 ? 3 : x < 0.001 ? 2 : 1);
+}

@@ -105,6 +105,8 @@ const CASES: Case[] = [
 	{ route: '/api/v1/stats/capability', method: 'GET', path: () => stats('capability', 'family=TEST-4&side=intake&measurement=clearance'), status: 200 },
 	{ route: '/api/v1/stats/capability', method: 'GET', path: () => stats('capability', 'family=TEST-4&side=exhaust&measurement=seat_width'), status: 422 },
 	{ route: '/api/v1/stats/capability', method: 'GET', path: () => stats('capability', 'family=TEST-4&side=intake&measurement=clearance&stage=as_received'), status: 400 },
+	{ route: '/api/v1/stats/capability/machinists', method: 'GET', path: () => stats('capability/machinists', 'family=TEST-4&side=intake&measurement=clearance'), status: 200 },
+	{ route: '/api/v1/stats/capability/machinists', method: 'GET', path: () => stats('capability/machinists', 'family=NOPE-1&side=intake&measurement=clearance'), status: 404 },
 	{ route: '/api/v1/stats/control', method: 'GET', path: () => stats('control', 'family=TEST-4&side=intake&measurement=clearance&stage=final&limit=200'), status: 200 },
 	{ route: '/api/v1/stats/control', method: 'GET', path: () => stats('control', 'family=NOPE-1&side=intake&measurement=clearance'), status: 404 },
 	{ route: '/api/v1/stats/control', method: 'GET', path: () => stats('control', 'family=TEST-4&side=intake&measurement=clearance&rules=nelson,we4'), status: 200 },

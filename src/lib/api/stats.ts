@@ -2,11 +2,12 @@
 // helper that builds their URLs. The shapes are the contract's ($lib/contract, zod schemas that
 // also generate the OpenAPI document); every number that is undefined for the data (an SD of one
 // reading, a rate of zero positions) is null, never NaN.
-import type { CheckResponse, ComebacksResponse, CompareResponse, ControlResponse, PChartResponse, DistributionResponse, FirstPassResponse, OutliersResponse, RatesResponse, CapabilityResponse, WearResponse } from '../contract';
+import type { CheckResponse, ComebacksResponse, CompareResponse, ControlResponse, PChartResponse, DistributionResponse, FirstPassResponse, OutliersResponse, RatesResponse, CapabilityResponse, CapabilityMachinistsResponse, WearResponse } from '../contract';
 import { getJson } from './client';
 
 export type {
 	CapabilityResponse,
+	CapabilityMachinistsResponse,
 	CheckResponse,
 	ComebacksResponse,
 	CompareResponse,
@@ -52,6 +53,7 @@ export const getRates = (p: Params, f?: typeof fetch) => getJson<RatesResponse>(
 export const getComebacks = (p: Params, f?: typeof fetch) => getJson<ComebacksResponse>(statsUrl('stats/comebacks', p), f);
 export const getFirstPass = (p: Params, f?: typeof fetch) => getJson<FirstPassResponse>(statsUrl('stats/first-pass', p), f);
 export const getCapability = (p: Params, f?: typeof fetch) => getJson<CapabilityResponse>(statsUrl('stats/capability', p), f);
+export const getCapabilityByMachinist = (p: Params, f?: typeof fetch) => getJson<CapabilityMachinistsResponse>(statsUrl('stats/capability/machinists', p), f);
 export const getControl = (p: Params, f?: typeof fetch) => getJson<ControlResponse>(statsUrl('stats/control', p), f);
 export const getPChart = (p: Params, f?: typeof fetch) => getJson<PChartResponse>(statsUrl('stats/pchart', p), f);
 export const getWear = (p: Params, f?: typeof fetch) => getJson<WearResponse>(statsUrl('stats/wear', p), f);

@@ -228,31 +228,99 @@ export const FirstPassResponse = named(
 );
 export type FirstPassResponse = z.output<typeof FirstPassResponse>;
 
+const IndexInterval = named(
+	'IndexInterval',
+	z.strictObject({ lower: z.number(), upper: z.number() }).meta({ description: 'Bissell’s (1990) approximate 95 % interval: index ± 1.96·√(1/(9n) + index²/(2(n − 1))).' })
+);
+
+/** Capability of one series of final readings: the indices, what happened, and the verdict. */
+const capabilityStats = {
+	n: count,
+	mean: maybe,
+	sdWithin: maybe.meta({ description: 'MR̄/1.128 from consecutive readings in time order.' }),
+	sdOverall: maybe,
+	cp: maybe,
+	cpk: maybe,
+	cpu: maybe,
+	cpl: maybe,
+	pp: maybe,
+	ppk: maybe,
+	cpkInterval: IndexInterval.nullable(),
+	ppkInterval: IndexInterval.nullable(),
+	observed: z
+		.strictObject({ below: count, above: count, count, share: maybe })
+		.meta({ description: 'Readings strictly outside the limits and their share of all readings (what happened).' }),
+	observedIndex: maybe.meta({ description: 'The index the observed share implies on its worse side, −Φ⁻¹(share)/3 (0.135 % ↔ 1.00, 31.7 ppm ↔ 1.33); null when no reading is outside.' }),
+	predicted: z
+		.strictObject({ below: maybe, above: maybe, share: maybe })
+		.meta({ description: 'The share outside the limits a normal with the mean and the overall SD predicts.' }),
+	normality: z
+		.strictObject({
+			method: z.literal('anderson_darling'),
+			n: count,
+			a2: maybe.meta({ description: 'A² with the sample mean and SD; null below 8 readings or without spread.' }),
+			a2Adjusted: maybe.meta({ description: 'A²* = A²(1 + 0.75/n + 2.25/n²) (D’Agostino & Stephens 1986).' }),
+			pValue: maybe.meta({ description: 'From A²* (D’Agostino & Stephens 1986, Table 4.9); never 0.' }),
+			pBelow: z.boolean().meta({ description: 'True when pValue is an upper bound (A²* beyond the approximation’s range).' }),
+			rejected: z.boolean().nullable().meta({ description: 'pValue < 0.05.' })
+		}),
+	nearBound: z
+		.strictObject({ side: z.enum(['min', 'max']), value: z.number(), sds: z.number() })
+		.nullable()
+		.meta({ description: 'A physical bound of the quantity within 3 overall SDs of the mean (the normal fit spills more than 0.135 % past it).' }),
+	percentile: z
+		.strictObject({ p00135: z.number(), p50: z.number(), p99865: z.number(), cp: maybe, cpu: maybe, cpl: maybe, cpk: maybe })
+		.nullable()
+		.meta({ description: 'ISO 22514-2 percentile indices from the sample’s 0.135 %, 50 % and 99.865 % quantiles (type 7).' }),
+	method: z.enum(['normal', 'percentile']).meta({ description: 'The estimate the verdict used: percentile when the readings fail the normality test or sit near a physical bound (and number at least 100).' }),
+	methodReason: z.string(),
+	modelIndex: maybe.meta({ description: 'The model’s index the verdict weighed: min(Cpk, Ppk) for the normal method, the percentile Cpk otherwise.' }),
+	modelIndexName: z.enum(['Cpk', 'Ppk', 'percentile Cpk']).nullable(),
+	modelInterval: IndexInterval.nullable(),
+	verdict: z.strictObject({
+		level: z.enum(['capable', 'marginal', 'not_capable', 'unknown']),
+		text: z.string(),
+		basis: z.enum(['model', 'observed']).nullable().meta({ description: 'Whether the model’s index or the observed share outside set the level.' }),
+		index: maybe.meta({ description: 'The index the level was read from: the lower of the observed index and the lower end of the model index’s interval.' }),
+		sure: z.boolean().meta({ description: 'False when the model index’s 95 % interval reaches into another level (too few readings to be sure).' })
+	})
+};
+
+const capabilityHead = {
+	family: FamilyLabel,
+	side,
+	stage: z.literal('final'),
+	...measured,
+	limits: LimitInfo.nullable(),
+	limitsAsOf: day
+};
+
 export const CapabilityResponse = named(
 	'CapabilityResponse',
 	z.strictObject({
-		family: FamilyLabel,
-		side,
-		stage: z.literal('final'),
-		...measured,
-		limits: LimitInfo.nullable(),
-		limitsAsOf: day,
-		n: count,
-		mean: maybe,
-		sdWithin: maybe.meta({ description: 'MR̄/1.128 from consecutive readings in time order.' }),
-		sdOverall: maybe,
-		cp: maybe,
-		cpk: maybe,
-		cpu: maybe,
-		cpl: maybe,
-		pp: maybe,
-		ppk: maybe,
-		verdict: z.strictObject({ level: z.enum(['capable', 'marginal', 'not_capable', 'unknown']), text: z.string() })
+		...capabilityHead,
+		...capabilityStats,
+		histogram: z.array(HistogramBin).meta({ description: 'Freedman–Diaconis bins of the readings, 5–60 of them.' }),
+		fit: z
+			.array(z.strictObject({ x: z.number(), count: z.number() }))
+			.meta({ description: 'The fitted normal (mean, overall SD) as readings per bin width, to draw over the histogram.' })
 	})
 );
 export type CapabilityResponse = z.output<typeof CapabilityResponse>;
 
 const ruleId = z.enum(RULE_IDS);
+
+export const CapabilityMachinist = named('CapabilityMachinist', z.strictObject({ machinist: z.string(), ...capabilityStats }));
+export type CapabilityMachinist = z.output<typeof CapabilityMachinist>;
+
+export const CapabilityMachinistsResponse = named(
+	'CapabilityMachinistsResponse',
+	z.strictObject({
+		...capabilityHead,
+		machinists: z.array(CapabilityMachinist).meta({ description: 'One entry per machinist with final readings in the selection, by name; each judged on their own readings in time order.' })
+	})
+);
+export type CapabilityMachinistsResponse = z.output<typeof CapabilityMachinistsResponse>;
 
 export const ControlPoint = named(
 	'ControlPoint',

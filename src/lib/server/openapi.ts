@@ -7,6 +7,7 @@
 // methods; tests/e2e/api-contract.e2e.ts validates real answers of every route against it.
 import { z } from 'zod';
 import {
+	CapabilityMachinistsResponse,
 	CapabilityResponse,
 	CheckResponse,
 	ComebacksResponse,
@@ -275,12 +276,22 @@ export const OPENAPI = {
 		},
 		'/api/v1/stats/capability': {
 			get: operation('capability', {
-				summary: 'Process capability (Cp, Cpk) of final readings against the final limits',
+				summary: 'Process capability of final readings against the final limits: Cp/Cpk, Pp/Ppk with intervals, observed and predicted share outside, normality and the percentile method',
 				role: 'viewer',
 				tag: 'Statistics',
 				query: capabilityQuerySchema as unknown as ZodObjectLike,
 				example: 'family=ALDER-4&side=intake&measurement=seat_width',
 				responses: { '200': answer(CapabilityResponse, 'Capability with a verdict in words.'), '404': noFamily, '422': problem('The limits leave no tolerance.') }
+			})
+		},
+		'/api/v1/stats/capability/machinists': {
+			get: operation('capabilityByMachinist', {
+				summary: 'Capability per machinist, side by side: each machinist’s final readings judged alone, with Bissell’s Cpk intervals',
+				role: 'viewer',
+				tag: 'Statistics',
+				query: capabilityQuerySchema as unknown as ZodObjectLike,
+				example: 'family=ALDER-4&side=exhaust&measurement=vacuum_hold',
+				responses: { '200': answer(CapabilityMachinistsResponse, 'One capability per machinist.'), '404': noFamily, '422': problem('The limits leave no tolerance.') }
 			})
 		},
 		'/api/v1/stats/control': {

@@ -61,6 +61,7 @@ export const POLICY: Record<string, RoutePolicy> = {
 	'/(app)/quality': { GET: 'machinist', 'action:baseline': 'engineer' },
 	'/api/v1/check': { GET: 'viewer' },
 	'/api/v1/stats/capability': { GET: 'viewer' },
+	'/api/v1/stats/capability/machinists': { GET: 'viewer' },
 	'/api/v1/stats/comebacks': { GET: 'viewer' },
 	'/api/v1/stats/first-pass': { GET: 'viewer' },
 	'/api/v1/stats/compare': { GET: 'viewer' },

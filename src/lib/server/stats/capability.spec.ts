@@ -1,12 +1,20 @@
+import normalQuantile from '@stdlib/stats-base-dists-normal-quantile';
 import { describe as group, expect, it } from 'vitest';
+import { generateDemo } from '../demo/generate';
 import {
 	averageMovingRange,
+	bissellInterval,
 	capability,
 	capabilityIndices,
 	capabilityVerdict,
 	CONTROL_CHART_CONSTANTS,
 	D4_MR,
-	E2_MR
+	E2_MR,
+	nearBound,
+	observedIndex,
+	observedOutside,
+	percentileCapability,
+	predictedOutside
 } from './capability';
 
 group('capabilityIndices', () => {
@@ -64,7 +72,11 @@ group('capability (within σ = MR̄/1.128, overall σ = s)', () => {
 		expect(r.cpk as number).toBeCloseTo(3.5 / (3 * sw), 12);
 		expect(r.pp as number).toBeCloseTo(7 / (6 * so), 12);
 		expect(r.ppk as number).toBeCloseTo(3.5 / (3 * so), 12);
-		expect(r.verdict.level).toBe('marginal'); // Cpk 1.316
+		// Cpk 1.316 alone would be marginal; Bissell's interval on 10 readings (0.67–1.96) reaches
+		// below 1, so the verdict is read at its lower end and says it is not sure.
+		expect(r.modelIndexName).toBe('Cpk');
+		expect(r.verdict).toMatchObject({ level: 'not_capable', sure: false, basis: 'model' });
+		expect(r.verdict.text).toMatch(/^Not enough readings to be sure: Cpk 1\.32 \(95 % interval 0\.67–1\.96\) from 10 readings/);
 	});
 	it('upper limit only: Cp and Pp null, Cpk = Cpu', () => {
 		// SAS/QC docs (docs/REFERENCES.md B4 [S]); same data as above [C]
@@ -120,3 +132,121 @@ group('Shewhart constants (docs/REFERENCES.md B5)', () => {
 		expect(D4_MR).toBe(3.267);
 	});
 });
+
+group('Bissell (1990) interval for Cpk', () => {
+	it('Cpk ± 1.96·√(1/(9n) + Cpk²/(2(n − 1))): n = 45, Cpk 1.15 → 0.89 to 1.41', () => {
+		// Formula: Bissell (1990) Applied Statistics 39:331 [M], printed as Cpk[1 ± 1.96√(1/(9n·Cpk²) + 1/(2(n − 1)))]
+		// in Rodriguez (1992) J. Quality Technology 24:176 [S] (stored scan); worked example n = 45, Cpk 1.15 →
+		// "between 0.89 and 1.41" [S] Quality Digest, May 2000, "The Last Word" (qualitydigest.com/may00/html/lastword.html)
+		const ci = bissellInterval(1.15, 45) as { lower: number; upper: number };
+		expect(ci.lower).toBeCloseTo(0.89, 2);
+		expect(ci.upper).toBeCloseTo(1.41, 2);
+		expect(ci.upper - ci.lower).toBeCloseTo(2 * 1.959964 * Math.sqrt(1 / 405 + 1.3225 / 88), 12);
+		expect(bissellInterval(1.15, 1)).toBeNull();
+		expect(bissellInterval(null, 45)).toBeNull();
+	});
+});
+
+group('percentile capability (ISO 22514-2, Clements)', () => {
+	it('x = 0…10000: X0.135 = 13.5, X50 = 5000, X99.865 = 9986.5; limits −1000…12000', () => {
+		// Constructed sample [C]: type-7 quantiles of 0…10000 are exactly 10000·p. ISO 22514-2 / Clements (1989) [M]:
+		// Cp = (USL − LSL)/(X99.865 − X0.135), Cpu = (USL − X50)/(X99.865 − X50), Cpl = (X50 − LSL)/(X50 − X0.135)
+		const xs = Array.from({ length: 10001 }, (_, i) => i);
+		const r = percentileCapability(xs, { lsl: -1000, usl: 12000 })!;
+		expect(r).toMatchObject({ p00135: 13.5, p50: 5000, p99865: 9986.5 });
+		expect(r.cp as number).toBeCloseTo(13000 / 9973, 12);
+		expect(r.cpu as number).toBeCloseTo(7000 / 4986.5, 12);
+		expect(r.cpl as number).toBeCloseTo(6000 / 4986.5, 12);
+		expect(r.cpk).toBe(r.cpl);
+		expect(percentileCapability([5], { lsl: 1 })).toBeNull();
+	});
+});
+
+group('observed and predicted share outside', () => {
+	it('counts strictly outside; the implied index is −Φ⁻¹(share)/3 of the worse side', () => {
+		// Φ⁻¹(0.00135) = −3.0000 and Φ⁻¹(3.17e-5) = −4.0 [C], so 0.135 % ↔ 1.00 and 31.7 ppm ↔ 1.33
+		const o = observedOutside([1, 2, 2, 3, 9, 10, 11], { lsl: 2, usl: 10 });
+		expect(o).toEqual({ below: 1, above: 1, count: 2, share: 2 / 7 });
+		expect(observedIndex({ below: 135, above: 0, count: 135, share: 0.00135 }, 100000) as number).toBeCloseTo(1, 3);
+		expect(observedIndex({ below: 0, above: 0, count: 0, share: 0 }, 100)).toBeNull();
+		// every reading outside: finite, taken as 99.5 of 100 (−Φ⁻¹(0.995)/3 = −0.8586) [C]
+		expect(observedIndex({ below: 100, above: 0, count: 100, share: 1 }, 100) as number).toBeCloseTo(-0.8586, 4);
+		// a normal (16, 2) against 8…20: Φ(−4) + Φ(−2) [C]
+		const p = predictedOutside(16, 2, { lsl: 8, usl: 20 });
+		expect(p.below as number).toBeCloseTo(3.167124183e-5, 12);
+		expect(p.above as number).toBeCloseTo(0.02275013195, 10);
+	});
+	it('a bound within 3 SDs of the mean makes the data bounded', () => {
+		// Definition (ours): the normal fit puts more than Φ(−3) = 0.135 % past a value the quantity cannot pass
+		expect(nearBound(97.8, 3.4, { min: 0, max: 100 })).toMatchObject({ side: 'max', value: 100 });
+		expect(nearBound(0.045, 0.005, { min: 0, max: null })).toBeNull();
+		expect(nearBound(0.02, 0.015, { min: 0, max: null })).toMatchObject({ side: 'min' });
+	});
+});
+
+group('the verdict takes the worse of the model and what happened', () => {
+	it('normal data, 3,000 readings, Cpk about 1.5: capable and sure', () => {
+		// Deterministic normal scores Φ⁻¹((i − 0.5)/n), interleaved so that moving ranges reflect the spread [C]
+		const n = 3000;
+		const xs = shuffled(Array.from({ length: n }, (_, i) => 10 + phiInv((i + 0.5) / n)));
+		const r = capability(xs, { lsl: 5.5, usl: 14.5 });
+		expect(r.method).toBe('normal');
+		expect(r.normality.rejected).toBe(false);
+		expect(r.ppk as number).toBeCloseTo(1.5, 2);
+		expect(r.verdict).toMatchObject({ level: 'capable', sure: true });
+		expect(r.observed.count).toBe(0);
+	});
+	it('the demo’s ALDER-4 exhaust vacuum hold (final): 85 of 3,533 below 90 % is not capable, whatever Cpk 1.24 says', () => {
+		// The full demo as seeded on 2026-12-03 (generateDemo, 3000 heads; the figures move with the end date), the final vacuum hold of ALDER-4's exhaust valves in time order;
+		// the limit is the shop's vacuumHoldPassPct = 90 (at least). The issue's example: Cpk 1.24, 85 of 3,533 below.
+		const d = generateDemo({ endDate: '2026-12-03' });
+		const fam = new Set(d.families.filter((f) => f.code === 'ALDER-4').map((f) => f.id));
+		const rows = [...d.readings()].filter((r) => fam.has(r.familyId) && r.side === 'exhaust' && r.measurement === 'vacuum_hold' && r.stage === 'final');
+		rows.sort((a, b) => Date.parse(a.measuredAt) - Date.parse(b.measuredAt)); // stable: ties keep the order the generator gave them (their ids')
+		const r = capability(
+			rows.map((x) => Number(x.value)),
+			{ lsl: 90 },
+			{ bounds: { min: 0, max: 100 } }
+		);
+		expect(r.n).toBe(3533);
+		expect(r.observed).toMatchObject({ below: 85, above: 0, count: 85 });
+		expect(r.observed.share as number).toBeCloseTo(0.0241, 4);
+		expect(r.cpk as number).toBeCloseTo(1.24, 2);
+		expect(r.ppk as number).toBeCloseTo(0.76, 2);
+		expect(r.observedIndex as number).toBeCloseTo(0.66, 2);
+		expect(r.normality.rejected).toBe(true);
+		expect(r.nearBound).toMatchObject({ side: 'max', value: 100 });
+		expect(r.method).toBe('percentile');
+		expect(r.percentile).toMatchObject({ p00135: 71, p50: 98.5, p99865: 100 });
+		expect(r.verdict.level).toBe('not_capable');
+		expect(r.verdict.index as number).toBeLessThanOrEqual(r.observedIndex as number);
+		expect(r.verdict.text).toContain('85 of 3,533 readings (2.4 %) are outside the limits');
+	}, 60_000);
+	it('a model index above the observed one gives way to it', () => {
+		// [C] 1,000 readings 0…999 normal scores, shuffled, with 10 set just below the lower limit
+		const n = 1000;
+		const xs = shuffled(Array.from({ length: n }, (_, i) => 50 + phiInv((i + 0.5) / n)));
+		for (let i = 0; i < 10; i++) xs[i * 97] = 44.9;
+		const r = capability(xs, { lsl: 45, usl: 55 });
+		expect(r.observed.below).toBe(10);
+		expect(r.verdict.basis).toBe('observed');
+		expect(r.verdict.level).toBe('not_capable');
+		expect(r.verdict.text).toMatch(/^Not capable: 10 of 1,000 readings \(1\.0 %\) are outside the limits, as many as an index of 0\.78 would give/);
+	});
+});
+
+function phiInv(p: number): number {
+	return normalQuantile(p, 0, 1);
+}
+
+/** A fixed shuffle (Fisher–Yates over a 32-bit LCG), so consecutive readings are unrelated as in a steady process. */
+function shuffled(xs: number[]): number[] {
+	let seed = 12345;
+	const out = [...xs];
+	for (let i = out.length - 1; i > 0; i--) {
+		seed = (Math.imul(seed, 1664525) + 1013904223) >>> 0;
+		const j = seed % (i + 1);
+		[out[i], out[j]] = [out[j], out[i]];
+	}
+	return out;
+}

@@ -52,8 +52,10 @@ export {
 } from './rates';
 export {
 	averageMovingRange,
+	bissellInterval,
 	CAPABLE_CPK,
 	capability,
+	capabilityLevel,
 	capabilityIndices,
 	capabilityVerdict,
 	CONTROL_CHART_CONSTANTS,
@@ -86,6 +88,7 @@ export {
 	type PChartPoint
 } from './control';
 export { NELSON, RULE_IDS, RULES, ruleBreaks, WESTERN_ELECTRIC, type RuleBreak, type RuleId, type RuleInfo } from './rules';
+export { andersonDarling, phi, phiInverse, type NormalityTest } from './normality';
 export { linearFit, type BandPoint, type LinearFit } from './regression';
 export {
 	countBeyond,

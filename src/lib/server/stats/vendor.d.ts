@@ -12,6 +12,12 @@ declare module 'jstat' {
 			inv(p: number, dof: number): number;
 			cdf(x: number, dof: number): number;
 		};
+		/** Complementary error function. */
+		erfc(x: number): number;
+		normal: {
+			cdf(x: number, mean: number, sd: number): number;
+			inv(p: number, mean: number, sd: number): number;
+		};
 		chisquare: {
 			cdf(x: number, dof: number): number;
 		};

@@ -3,7 +3,7 @@
 // (the statistics benchmark) can use the engine without the app's client.
 import { inShop } from '../../db';
 import type { Conn } from '../../db/scope';
-import { capabilityStudy } from './capability';
+import { capabilityByMachinist, capabilityStudy } from './capability';
 import { checkReading } from './check';
 import type { ControlBaseline } from '../../../contract';
 import type { BaselineForm } from '../../../schemas/stats';
@@ -29,6 +29,7 @@ export const ratesFor = scoped(rates);
 export const comebacksFor = scoped(comebacks);
 export const firstPassFor = scoped(firstPass);
 export const capabilityFor = scoped(capabilityStudy);
+export const capabilityByMachinistFor = scoped(capabilityByMachinist);
 export const controlFor = scoped(control);
 export const pchartFor = scoped(pchart);
 export const wearFor = scoped(wear);

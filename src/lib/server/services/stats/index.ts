@@ -9,7 +9,7 @@ export { checkReading } from './check';
 export { outliers } from './outliers';
 export { comebacks, rates } from './rates';
 export { firstPass } from './first-pass';
-export { capabilityStudy } from './capability';
+export { capabilityByMachinist, capabilityStudy } from './capability';
 export { BASELINE_DEFAULT_N, BASELINE_MIN_N, control, pchart, recomputeBaseline } from './control';
 export { wear } from './wear';
 export { describeValues } from './describe';
