@@ -8,7 +8,7 @@ import type { DataSource } from '../../../contract';
 import type { Conn } from '../../db/scope';
 import { expandCounts, mergeMoments, momentsOf, type Moments, type ValueCount } from '../../stats';
 import { needsReadings, readingsWhere, type Selection } from './selection';
-import { splitWindow, type DayRange } from './window';
+import { splitWindow, stamp, type DayRange } from './window';
 
 /** One family × series of the selection: its moments and its exact frequency table. */
 export interface GroupData {
@@ -126,4 +126,127 @@ export async function groupData(
 	}
 	groups.sort((a, b) => (a.familyId < b.familyId ? -1 : a.familyId > b.familyId ? 1 : a.key - b.key));
 	return { groups, source };
+}
+
+// ---------------------------------------------------------------------------------------------
+// Readings outside the limits of their day
+
+/** One limit version of a family × series, with the day the next one starts (null: still in force). */
+export type LimitVersion = {
+	familyId: string;
+	key: number;
+	min: number | null;
+	max: number | null;
+	effectiveFrom: string;
+	effectiveTo: string | null;
+};
+
+/** Every limit version of the selection's families × series, in effective order. */
+export async function limitVersions(conn: Conn, shopId: string, only: { familyIds: string[] | null; keys: number[] }): Promise<LimitVersion[]> {
+	const where: SQL[] = [sql`shop_id = ${shopId}`, sql`lapmark_series(measurement, stage, side) = any(${sql.param(only.keys)}::int2[])`];
+	if (only.familyIds) where.push(sql`family_id = any(${sql.param(only.familyIds)}::uuid[])`);
+	return conn.execute<LimitVersion>(sql`
+		select family_id as "familyId", lapmark_series(measurement, stage, side) as key, min, max,
+			effective_from::text as "effectiveFrom",
+			(lead(effective_from) over (partition by family_id, measurement, stage, side order by effective_from))::text as "effectiveTo"
+		from limits where ${sql.join(where, sql` and `)}
+		order by family_id, key, effective_from`);
+}
+
+/** Readings of one family × series judged against the limits of their own day. */
+export type JudgedRow = {
+	familyId: string;
+	key: number;
+	/** Readings measured on a day some limit version was in force. */
+	judged: number;
+	below: number;
+	above: number;
+};
+
+const firstOfMonth = (day: string) => `${day.slice(0, 7)}-01`;
+const monthAfter = (day: string) => {
+	const d = new Date(`${firstOfMonth(day)}T00:00:00Z`);
+	d.setUTCMonth(d.getUTCMonth() + 1);
+	return d.toISOString().slice(0, 10);
+};
+
+/**
+ * Readings of the selection outside the limit version in force on the day (UTC) each was
+ * measured, per family × series: the trade's failure question, the one the rates answer asks of
+ * valve positions. Every whole month that lies inside one version is judged from the per-month
+ * frequency tables (reading_value_counts); a month in which a version starts (rare: a shop
+ * changes its limits now and then), the partial months at either end of a date range and the
+ * filters the summaries do not keep read readings, each reading meeting its version by time.
+ */
+export async function outsideByDay(
+	conn: Conn,
+	shopId: string,
+	sel: Selection,
+	versions: readonly LimitVersion[],
+	opts: { source?: 'auto' | 'readings' } = {}
+): Promise<JudgedRow[]> {
+	if (!versions.length) return [];
+	// The versions as one array parameter each: missing bounds ±Infinity, an open end 'infinity'
+	// (days as text: the driver would read a date array as instants).
+	const lv = sql`select family_id, series_key, lo, hi, vfrom::date as vfrom, vto::date as vto from unnest(
+			${sql.param(versions.map((v) => v.familyId))}::uuid[],
+			${sql.param(versions.map((v) => v.key))}::int2[],
+			${sql.param(versions.map((v) => String(v.min ?? '-Infinity')))}::float8[],
+			${sql.param(versions.map((v) => String(v.max ?? 'Infinity')))}::float8[],
+			${sql.param(versions.map((v) => v.effectiveFrom))}::text[],
+			${sql.param(versions.map((v) => v.effectiveTo ?? 'infinity'))}::text[]
+		) as v(family_id, series_key, lo, hi, vfrom, vto)`;
+	const fromReadings = (where: SQL) => sql`
+		select r.family_id, r.series_key, count(*) as judged,
+			count(*) filter (where r.value < lv.lo) as below, count(*) filter (where r.value > lv.hi) as above
+		from readings r
+		join lv on lv.family_id = r.family_id and lv.series_key = r.series_key
+			and r.measured_at >= (lv.vfrom::timestamp at time zone 'UTC') and r.measured_at < (lv.vto::timestamp at time zone 'UTC')
+		where ${where}
+		group by 1, 2`;
+	const parts: SQL[] = [];
+	if (opts.source === 'readings' || needsReadings(sel)) {
+		parts.push(fromReadings(readingsWhere(shopId, sel)));
+	} else {
+		const win = splitWindow(sel.from, sel.to);
+		if (win.months) {
+			const where: SQL[] = [sql`c.shop_id = ${shopId}`, sql`c.series_key = any(${sql.param(sel.keys)}::int2[])`];
+			if (sel.familyIds) where.push(sql`c.family_id = any(${sql.param(sel.familyIds)}::uuid[])`);
+			if (win.months.start) where.push(sql`c.month >= ${win.months.start}::date`);
+			if (win.months.end) where.push(sql`c.month < ${win.months.end}::date`);
+			// A month wholly inside one version: its frequency table judged by that version.
+			parts.push(sql`
+				select c.family_id, c.series_key, sum(c.n) as judged,
+					coalesce(sum(c.n) filter (where c.value < lv.lo), 0) as below, coalesce(sum(c.n) filter (where c.value > lv.hi), 0) as above
+				from reading_value_counts c
+				join lv on lv.family_id = c.family_id and lv.series_key = c.series_key
+					and c.month >= lv.vfrom and (c.month + interval '1 month') <= lv.vto
+				where ${sql.join(where, sql` and `)}
+				group by 1, 2`);
+			// The months a version starts inside (not on the 1st), within the window: from readings,
+			// only for that family × series.
+			const split: SQL[] = [];
+			const seen = new Set<string>();
+			for (const v of versions) {
+				const start = firstOfMonth(v.effectiveFrom);
+				if (start === v.effectiveFrom) continue;
+				if (win.months.start && start < win.months.start) continue;
+				if (win.months.end && start >= win.months.end) continue;
+				const id = `${v.familyId}|${v.key}|${start}`;
+				if (seen.has(id)) continue;
+				seen.add(id);
+				split.push(
+					sql`(r.family_id = ${v.familyId}::uuid and r.series_key = ${v.key}::int2 and r.measured_at >= ${stamp(start)}::timestamptz and r.measured_at < ${stamp(monthAfter(start))}::timestamptz)`
+				);
+			}
+			if (split.length) parts.push(fromReadings(sql`${readingsWhere(shopId, sel)} and (${sql.join(split, sql` or `)})`));
+		}
+		if (win.edges.length) parts.push(fromReadings(readingsWhere(shopId, sel, win.edges)));
+	}
+	if (!parts.length) return [];
+	return conn.execute<JudgedRow>(sql`
+		with lv as (${lv})
+		select family_id as "familyId", series_key as key, sum(judged)::int as judged, sum(below)::int as below, sum(above)::int as above
+		from (${sql.join(parts, sql` union all `)}) j
+		group by 1, 2`);
 }
