@@ -177,6 +177,8 @@ const monthAfter = (day: string) => {
  * frequency tables (reading_value_counts); a month in which a version starts (rare: a shop
  * changes its limits now and then), the partial months at either end of a date range and the
  * filters the summaries do not keep read readings, each reading meeting its version by time.
+ * `splitReadings`: how many of the readings judged were read because a version starts in their
+ * month (the answer then came partly from readings).
  */
 export async function outsideByDay(
 	conn: Conn,
@@ -184,8 +186,8 @@ export async function outsideByDay(
 	sel: Selection,
 	versions: readonly LimitVersion[],
 	opts: { source?: 'auto' | 'readings' } = {}
-): Promise<JudgedRow[]> {
-	if (!versions.length) return [];
+): Promise<{ rows: JudgedRow[]; splitReadings: number }> {
+	if (!versions.length) return { rows: [], splitReadings: 0 };
 	// The versions as one array parameter each: missing bounds ±Infinity, an open end 'infinity'
 	// (days as text: the driver would read a date array as instants).
 	const lv = sql`select family_id, series_key, lo, hi, vfrom::date as vfrom, vto::date as vto from unnest(
@@ -196,8 +198,8 @@ export async function outsideByDay(
 			${sql.param(versions.map((v) => v.effectiveFrom))}::text[],
 			${sql.param(versions.map((v) => v.effectiveTo ?? 'infinity'))}::text[]
 		) as v(family_id, series_key, lo, hi, vfrom, vto)`;
-	const fromReadings = (where: SQL) => sql`
-		select r.family_id, r.series_key, count(*) as judged,
+	const fromReadings = (where: SQL, split = false) => sql`
+		select r.family_id, r.series_key, count(*) as judged, ${split ? sql`count(*)` : sql`0`} as split,
 			count(*) filter (where r.value < lv.lo) as below, count(*) filter (where r.value > lv.hi) as above
 		from readings r
 		join lv on lv.family_id = r.family_id and lv.series_key = r.series_key
@@ -216,7 +218,7 @@ export async function outsideByDay(
 			if (win.months.end) where.push(sql`c.month < ${win.months.end}::date`);
 			// A month wholly inside one version: its frequency table judged by that version.
 			parts.push(sql`
-				select c.family_id, c.series_key, sum(c.n) as judged,
+				select c.family_id, c.series_key, sum(c.n) as judged, 0 as split,
 					coalesce(sum(c.n) filter (where c.value < lv.lo), 0) as below, coalesce(sum(c.n) filter (where c.value > lv.hi), 0) as above
 				from reading_value_counts c
 				join lv on lv.family_id = c.family_id and lv.series_key = c.series_key
@@ -239,14 +241,19 @@ export async function outsideByDay(
 					sql`(r.family_id = ${v.familyId}::uuid and r.series_key = ${v.key}::int2 and r.measured_at >= ${stamp(start)}::timestamptz and r.measured_at < ${stamp(monthAfter(start))}::timestamptz)`
 				);
 			}
-			if (split.length) parts.push(fromReadings(sql`${readingsWhere(shopId, sel)} and (${sql.join(split, sql` or `)})`));
+			if (split.length) parts.push(fromReadings(sql`${readingsWhere(shopId, sel)} and (${sql.join(split, sql` or `)})`, true));
 		}
 		if (win.edges.length) parts.push(fromReadings(readingsWhere(shopId, sel, win.edges)));
 	}
-	if (!parts.length) return [];
-	return conn.execute<JudgedRow>(sql`
+	if (!parts.length) return { rows: [], splitReadings: 0 };
+	const rows = await conn.execute<JudgedRow & { split: number }>(sql`
 		with lv as (${lv})
-		select family_id as "familyId", series_key as key, sum(judged)::int as judged, sum(below)::int as below, sum(above)::int as above
+		select family_id as "familyId", series_key as key, sum(judged)::int as judged, sum(below)::int as below, sum(above)::int as above,
+			sum(split)::int as split
 		from (${sql.join(parts, sql` union all `)}) j
 		group by 1, 2`);
+	return {
+		rows: rows.map(({ split: _s, ...r }) => r),
+		splitReadings: rows.reduce((n, r) => n + r.split, 0)
+	};
 }
