@@ -8,7 +8,7 @@ import type { DataSource } from '../../../contract';
 import type { Conn } from '../../db/scope';
 import { expandCounts, mergeMoments, momentsOf, type Moments, type ValueCount } from '../../stats';
 import { needsReadings, readingsWhere, type Selection } from './selection';
-import { splitWindow, stamp, type DayRange } from './window';
+import { splitWindow, type DayRange } from './window';
 
 /** One family × series of the selection: its moments and its exact frequency table. */
 export interface GroupData {
@@ -131,14 +131,13 @@ export async function groupData(
 // ---------------------------------------------------------------------------------------------
 // Readings outside the limits of their day
 
-/** One limit version of a family × series, with the day the next one starts (null: still in force). */
+/** One limit version of a family × series. */
 export type LimitVersion = {
 	familyId: string;
 	key: number;
 	min: number | null;
 	max: number | null;
 	effectiveFrom: string;
-	effectiveTo: string | null;
 };
 
 /** Every limit version of the selection's families × series, in effective order. */
@@ -146,9 +145,7 @@ export async function limitVersions(conn: Conn, shopId: string, only: { familyId
 	const where: SQL[] = [sql`shop_id = ${shopId}`, sql`lapmark_series(measurement, stage, side) = any(${sql.param(only.keys)}::int2[])`];
 	if (only.familyIds) where.push(sql`family_id = any(${sql.param(only.familyIds)}::uuid[])`);
 	return conn.execute<LimitVersion>(sql`
-		select family_id as "familyId", lapmark_series(measurement, stage, side) as key, min, max,
-			effective_from::text as "effectiveFrom",
-			(lead(effective_from) over (partition by family_id, measurement, stage, side order by effective_from))::text as "effectiveTo"
+		select family_id as "familyId", lapmark_series(measurement, stage, side) as key, min, max, effective_from::text as "effectiveFrom"
 		from limits where ${sql.join(where, sql` and `)}
 		order by family_id, key, effective_from`);
 }
@@ -163,13 +160,6 @@ export type JudgedRow = {
 	above: number;
 };
 
-const firstOfMonth = (day: string) => `${day.slice(0, 7)}-01`;
-const monthAfter = (day: string) => {
-	const d = new Date(`${firstOfMonth(day)}T00:00:00Z`);
-	d.setUTCMonth(d.getUTCMonth() + 1);
-	return d.toISOString().slice(0, 10);
-};
-
 /**
  * Readings of the selection outside the limit version in force on the day (UTC) each was
  * measured, per family × series: the trade's failure question, the one the rates answer asks of
@@ -177,6 +167,7 @@ const monthAfter = (day: string) => {
  * frequency tables (reading_value_counts); a month in which a version starts (rare: a shop
  * changes its limits now and then), the partial months at either end of a date range and the
  * filters the summaries do not keep read readings, each reading meeting its version by time.
+ * One statement, versions included, so it runs beside the distribution's own queries.
  * `splitReadings`: how many of the readings judged were read because a version starts in their
  * month (the answer then came partly from readings).
  */
@@ -184,26 +175,23 @@ export async function outsideByDay(
 	conn: Conn,
 	shopId: string,
 	sel: Selection,
-	versions: readonly LimitVersion[],
 	opts: { source?: 'auto' | 'readings' } = {}
 ): Promise<{ rows: JudgedRow[]; splitReadings: number }> {
-	if (!versions.length) return { rows: [], splitReadings: 0 };
-	// The versions as one array parameter each: missing bounds ±Infinity, an open end 'infinity'
-	// (days as text: the driver would read a date array as instants).
-	const lv = sql`select family_id, series_key, lo, hi, vfrom::date as vfrom, vto::date as vto from unnest(
-			${sql.param(versions.map((v) => v.familyId))}::uuid[],
-			${sql.param(versions.map((v) => v.key))}::int2[],
-			${sql.param(versions.map((v) => String(v.min ?? '-Infinity')))}::float8[],
-			${sql.param(versions.map((v) => String(v.max ?? 'Infinity')))}::float8[],
-			${sql.param(versions.map((v) => v.effectiveFrom))}::text[],
-			${sql.param(versions.map((v) => v.effectiveTo ?? 'infinity'))}::text[]
-		) as v(family_id, series_key, lo, hi, vfrom, vto)`;
-	const fromReadings = (where: SQL, split = false) => sql`
-		select r.family_id, r.series_key, count(*) as judged, ${split ? sql`count(*)` : sql`0`} as split,
-			count(*) filter (where r.value < lv.lo) as below, count(*) filter (where r.value > lv.hi) as above
-		from readings r
-		join lv on lv.family_id = r.family_id and lv.series_key = r.series_key
-			and r.measured_at >= (lv.vfrom::timestamp at time zone 'UTC') and r.measured_at < (lv.vto::timestamp at time zone 'UTC')
+	const only: SQL[] = [sql`shop_id = ${shopId}`, sql`lapmark_series(measurement, stage, side) = any(${sql.param(sel.keys)}::int2[])`];
+	if (sel.familyIds) only.push(sql`family_id = any(${sql.param(sel.familyIds)}::uuid[])`);
+	// Each version from its first day to the next one's (open: infinity), missing bounds ±Infinity.
+	const lv = sql`
+		select family_id, lapmark_series(measurement, stage, side) as series_key,
+			coalesce(min, '-Infinity') as lo, coalesce(max, 'Infinity') as hi, effective_from as vfrom,
+			coalesce(lead(effective_from) over (partition by family_id, measurement, stage, side order by effective_from), 'infinity') as vto
+		from limits where ${sql.join(only, sql` and `)}`;
+	const judge = (split: boolean) => sql`count(*) as judged, ${split ? sql`count(*)` : sql`0`} as split,
+			count(*) filter (where r.value < lv.lo) as below, count(*) filter (where r.value > lv.hi) as above`;
+	const ofItsDay = sql`lv.family_id = r.family_id and lv.series_key = r.series_key
+			and r.measured_at >= (lv.vfrom::timestamp at time zone 'UTC') and r.measured_at < (lv.vto::timestamp at time zone 'UTC')`;
+	const fromReadings = (where: SQL) => sql`
+		select r.family_id, r.series_key, ${judge(false)}
+		from readings r join lv on ${ofItsDay}
 		where ${where}
 		group by 1, 2`;
 	const parts: SQL[] = [];
@@ -213,9 +201,16 @@ export async function outsideByDay(
 		const win = splitWindow(sel.from, sel.to);
 		if (win.months) {
 			const where: SQL[] = [sql`c.shop_id = ${shopId}`, sql`c.series_key = any(${sql.param(sel.keys)}::int2[])`];
+			const inWindow: SQL[] = [sql`true`];
 			if (sel.familyIds) where.push(sql`c.family_id = any(${sql.param(sel.familyIds)}::uuid[])`);
-			if (win.months.start) where.push(sql`c.month >= ${win.months.start}::date`);
-			if (win.months.end) where.push(sql`c.month < ${win.months.end}::date`);
+			if (win.months.start) {
+				where.push(sql`c.month >= ${win.months.start}::date`);
+				inWindow.push(sql`m >= ${win.months.start}::date`);
+			}
+			if (win.months.end) {
+				where.push(sql`c.month < ${win.months.end}::date`);
+				inWindow.push(sql`m < ${win.months.end}::date`);
+			}
 			// A month wholly inside one version: its frequency table judged by that version.
 			parts.push(sql`
 				select c.family_id, c.series_key, sum(c.n) as judged, 0 as split,
@@ -225,23 +220,19 @@ export async function outsideByDay(
 					and c.month >= lv.vfrom and (c.month + interval '1 month') <= lv.vto
 				where ${sql.join(where, sql` and `)}
 				group by 1, 2`);
-			// The months a version starts inside (not on the 1st), within the window: from readings,
-			// only for that family × series.
-			const split: SQL[] = [];
-			const seen = new Set<string>();
-			for (const v of versions) {
-				const start = firstOfMonth(v.effectiveFrom);
-				if (start === v.effectiveFrom) continue;
-				if (win.months.start && start < win.months.start) continue;
-				if (win.months.end && start >= win.months.end) continue;
-				const id = `${v.familyId}|${v.key}|${start}`;
-				if (seen.has(id)) continue;
-				seen.add(id);
-				split.push(
-					sql`(r.family_id = ${v.familyId}::uuid and r.series_key = ${v.key}::int2 and r.measured_at >= ${stamp(start)}::timestamptz and r.measured_at < ${stamp(monthAfter(start))}::timestamptz)`
-				);
-			}
-			if (split.length) parts.push(fromReadings(sql`${readingsWhere(shopId, sel)} and (${sql.join(split, sql` or `)})`, true));
+			// A month a version starts in (not on its 1st), within the window: that family × series'
+			// readings of the month, each judged by the version of its day.
+			parts.push(sql`
+				select r.family_id, r.series_key, ${judge(true)}
+				from (
+					select distinct family_id, series_key, m from (select family_id, series_key, date_trunc('month', vfrom)::date as m from lv where extract(day from vfrom) > 1) v
+					where ${sql.join(inWindow, sql` and `)}
+				) split
+				join readings r on r.shop_id = ${shopId} and r.family_id = split.family_id and r.series_key = split.series_key
+					and r.measured_at >= (split.m::timestamp at time zone 'UTC') and r.measured_at < ((split.m + interval '1 month')::timestamp at time zone 'UTC')
+				join lv on ${ofItsDay}
+				where ${readingsWhere(shopId, sel)}
+				group by 1, 2`);
 		}
 		if (win.edges.length) parts.push(fromReadings(readingsWhere(shopId, sel, win.edges)));
 	}

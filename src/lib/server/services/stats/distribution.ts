@@ -78,8 +78,11 @@ function inForceOn(versions: readonly LimitVersion[], day: string): Map<string, 
 
 /** Frequency tables, the versions and the readings judged by day, for one selection. */
 async function gather(conn: Conn, shopId: string, sel: Selection, asOf: string, opts: { source?: 'auto' | 'readings' }) {
-	const [{ groups, source }, versions] = await Promise.all([groupData(conn, shopId, sel, opts), limitVersions(conn, shopId, sel)]);
-	const { rows: judged, splitReadings } = await outsideByDay(conn, shopId, sel, versions, opts);
+	const [{ groups, source }, versions, { rows: judged, splitReadings }] = await Promise.all([
+		groupData(conn, shopId, sel, opts),
+		limitVersions(conn, shopId, sel),
+		outsideByDay(conn, shopId, sel, opts)
+	]);
 	// A month a limit version starts in was read from readings too.
 	return { groups, source: splitReadings && source === 'summaries' ? ('summaries+readings' as const) : source, judged, limits: inForceOn(versions, asOf) };
 }
