@@ -183,12 +183,43 @@ const rateCells = (cells: string) => `
 			(p + z2 / (2 * n) + sqrt(z2) * sqrt(p * (1 - p) / n + z2 / (4 * n * n))) / (1 + z2 / n) as high
 		from w order by 1 nulls first, 2 nulls first, 3 nulls first`;
 
+/** The exhaust as-received clearance limit versions, each with the day the next one starts. */
+const versionsOf = (familyId: string | null) => `
+		lvd as (select family_id, min, max, effective_from as vfrom,
+			lead(effective_from) over (partition by family_id order by effective_from) as vto
+			from limits where shop_id = ${lit(ids.shop)}${familyId ? ` and family_id = ${lit(familyId)}` : ''}
+			and measurement = 'clearance' and stage = 'as_received' and side = 'exhaust')`;
+const beyondDay = (v: string) => `(${v} < coalesce(lvd.min, '-Infinity') or ${v} > coalesce(lvd.max, 'Infinity'))`;
+const dayJoin = `r.family_id = lvd.family_id and r.measured_at >= (lvd.vfrom::timestamp at time zone 'UTC')
+			and (lvd.vto is null or r.measured_at < (lvd.vto::timestamp at time zone 'UTC'))`;
+/** Readings outside the limit version of their day, per family (`od`: judged, outside_day), over readings `r`. */
+const byDayRaw = (familyId: string | null) => `${versionsOf(familyId)},
+		od as (select r.family_id, count(*) as judged, count(*) filter (where ${beyondDay('r.value')}) as outside_day
+			from r join lvd on ${dayJoin} group by 1)`;
+/** The same from the summaries, as the route reads it: months wholly inside one version from the
+ * per-month value counts, months a version starts in from readings. */
+const byDaySummary = (familyId: string | null) => `${versionsOf(familyId)},
+		vc as (select family_id, month, value, n from reading_value_counts
+			where shop_id = ${lit(ids.shop)} and series_key = ${keyAR('exhaust')}${familyId ? ` and family_id = ${lit(familyId)}` : ''}),
+		splitm as (select distinct family_id, date_trunc('month', vfrom)::date as m from lvd where vfrom <> date_trunc('month', vfrom)::date),
+		odm as (select vc.family_id, sum(vc.n) as judged, coalesce(sum(vc.n) filter (where ${beyondDay('vc.value')}), 0) as outside_day
+			from vc join lvd on lvd.family_id = vc.family_id and vc.month >= lvd.vfrom and (lvd.vto is null or vc.month + interval '1 month' <= lvd.vto)
+			group by 1),
+		ods as (select r.family_id, count(*) as judged, count(*) filter (where ${beyondDay('r.value')}) as outside_day
+			from readings r join splitm on splitm.family_id = r.family_id and r.measured_at >= (splitm.m::timestamp at time zone 'UTC')
+				and r.measured_at < ((splitm.m + interval '1 month')::timestamp at time zone 'UTC')
+			join lvd on ${dayJoin}
+			where r.shop_id = ${lit(ids.shop)} and r.series_key = ${keyAR('exhaust')}${familyId ? ` and r.family_id = ${lit(familyId)}` : ''}
+			group by 1),
+		od as (select family_id, sum(judged) as judged, sum(outside_day) as outside_day from (select * from odm union all select * from ods) x group by 1)`;
+
 /** The bare SQL of each route's aggregate, with the series given as `where` text. */
 const bare = {
 	capability: (series: string) => capabilitySql(series),
 	capabilityMachinists: (series: string) => capabilitySql(series, true),
 	distribution: (series: string) => `
-		with r as (select value from readings where shop_id = ${lit(ids.shop)} and family_id = ${lit(ids.family)} and ${series}),
+		with r as (select family_id, value, measured_at from readings where shop_id = ${lit(ids.shop)} and family_id = ${lit(ids.family)} and ${series}),
+		${byDayRaw(ids.family)},
 		s as (select count(*) as n, avg(value) as mean, stddev_samp(value) as sd, min(value) as mn, max(value) as mx,
 			percentile_cont(array[0.05, 0.25, 0.5, 0.75, 0.95]) within group (order by value) as q from r),
 		f as (select s.*, q[2] - 1.5 * (q[4] - q[2]) as lo, q[4] + 1.5 * (q[4] - q[2]) as hi,
@@ -201,10 +232,12 @@ const bare = {
 			(select percentile_cont(0.5) within group (order by abs(r.value - f.q[3])) from r) as mad,
 			(select count(*) from r where r.value < f.lo or r.value > f.hi) as tukey,
 			(select count(*) from r, lim where r.value < coalesce(lim.min, '-Infinity') or r.value > coalesce(lim.max, 'Infinity')) as outside,
-			(select json_agg(hist order by b) from hist) as histogram
+			(select json_agg(hist order by b) from hist) as histogram,
+			(select judged from od) as judged, (select outside_day from od) as outside_day
 		from f`,
 	compare: (series: string) => `
-		with r as (select family_id, value from readings where shop_id = ${lit(ids.shop)} and ${series}),
+		with r as (select family_id, value, measured_at from readings where shop_id = ${lit(ids.shop)} and ${series}),
+		${byDayRaw(null)},
 		s as (select family_id, count(*) as n, avg(value) as mean, stddev_samp(value) as sd, min(value) as mn, max(value) as mx,
 			percentile_cont(array[0.05, 0.25, 0.5, 0.75, 0.95]) within group (order by value) as q from r group by 1),
 		m as (select r.family_id, percentile_cont(0.5) within group (order by abs(r.value - s.q[3])) as mad,
@@ -215,8 +248,8 @@ const bare = {
 			order by family_id, effective_from desc),
 		o as (select r.family_id, count(*) as outside from r join lim using (family_id)
 			where r.value < coalesce(lim.min, '-Infinity') or r.value > coalesce(lim.max, 'Infinity') group by 1)
-		select s.*, m.mad, m.tukey, coalesce(o.outside, 0) as outside
-		from s join m using (family_id) left join o using (family_id) order by s.q[3]`,
+		select s.*, m.mad, m.tukey, coalesce(o.outside, 0) as outside, coalesce(od.judged, 0) as judged, coalesce(od.outside_day, 0) as outside_day
+		from s join m using (family_id) left join o using (family_id) left join od using (family_id) order by s.q[3]`,
 	rates: (series: string) => {
 		// With series_key the query can stay on readings_series_idx's columns, as the route's does;
 		// on enum columns it joins the limits on them and groups by side.
@@ -304,19 +337,21 @@ const limitOf = (familyId: string | null) => `
 			order by family_id, effective_from desc)`;
 const summaryBare: Record<'distribution' | 'compare' | 'rates' | 'check', string> = {
 	distribution: `
-		with ${fromSummaries(ids.family)}, ${limitOf(ids.family)},
+		with ${fromSummaries(ids.family)}, ${limitOf(ids.family)}, ${byDaySummary(ids.family)},
 		f as (select s.*, least(60, greatest(5, ceil((mx - mn) / nullif(2 * (q[4] - q[2]) / cbrt(n), 0))))::int as k from s),
 		hist as (select width_bucket(c.value, f.mn, f.mx * (1 + 1e-12), coalesce(f.k, 60)) as b, sum(c.n) as n from c, f group by 1)
 		select f.n, f.mean, f.sd, f.mn, f.mx, f.q, f.lo, f.hi, f.k, mads.mad, tk.tukey,
 			(select coalesce(sum(c.n), 0) from c, lim where c.value < coalesce(lim.min, '-Infinity') or c.value > coalesce(lim.max, 'Infinity')) as outside,
-			(select json_agg(hist order by b) from hist) as histogram
+			(select json_agg(hist order by b) from hist) as histogram,
+			(select judged from od) as judged, (select outside_day from od) as outside_day
 		from f join mads using (family_id) join tk using (family_id)`,
 	compare: `
-		with ${fromSummaries(null)}, ${limitOf(null)},
+		with ${fromSummaries(null)}, ${limitOf(null)}, ${byDaySummary(null)},
 		o as (select c.family_id, sum(c.n) as outside from c join lim using (family_id)
 			where c.value < coalesce(lim.min, '-Infinity') or c.value > coalesce(lim.max, 'Infinity') group by 1)
-		select s.family_id, s.n, s.mean, s.sd, s.mn, s.mx, s.q, mads.mad, tk.tukey, coalesce(o.outside, 0) as outside
-		from s join mads using (family_id) join tk using (family_id) left join o using (family_id) order by s.q[3]`,
+		select s.family_id, s.n, s.mean, s.sd, s.mn, s.mx, s.q, mads.mad, tk.tukey, coalesce(o.outside, 0) as outside,
+			coalesce(od.judged, 0) as judged, coalesce(od.outside_day, 0) as outside_day
+		from s join mads using (family_id) join tk using (family_id) left join o using (family_id) left join od using (family_id) order by s.q[3]`,
 	// Without dates, each position's first judged month is its entry with no month before it.
 	rates: `
 		with ${rateCells(`

@@ -70,7 +70,7 @@ describe('every analysis page, as each role that may open it', () => {
 		try {
 			await open(page, '/');
 			const preloads = await page.locator('head link[rel="preload"][as="fetch"]').evaluateAll((links) => links.map((l) => new URL((l as HTMLLinkElement).href).pathname + new URL((l as HTMLLinkElement).href).search));
-			expect(preloads.map((p) => p.split('?')[0]).sort()).toEqual(['/api/v1/overview', '/api/v1/stats/comebacks', '/api/v1/stats/compare', '/api/v1/stats/outliers']);
+			expect(preloads.map((p) => p.split('?')[0]).sort()).toEqual(['/api/v1/overview', '/api/v1/stats/comebacks', '/api/v1/stats/compare', '/api/v1/stats/outliers', '/api/v1/stats/rates']);
 			// A preload the page's fetch did not match would show as a second request for the same URL.
 			const fetched = await page.evaluate(() => performance.getEntriesByType('resource').map((r) => new URL(r.name)).filter((u) => u.pathname.startsWith('/api/')).map((u) => u.pathname + u.search));
 			expect(fetched.sort()).toEqual([...preloads].sort());

@@ -37,7 +37,9 @@ beforeAll(async () => {
 			reading(1, 'intake', 0.09, '2026-03-02'), // inside 0.10 (its day's version)
 			reading(2, 'intake', 0.09, '2026-06-02'), // outside 0.08 (its day's version)
 			reading(1, 'exhaust', 0.05, '2026-03-02'),
-			reading(1, 'exhaust', 0.2, '2026-03-02', 'seat_runout') // no limit for seat runout: not judged
+			reading(1, 'exhaust', 0.2, '2026-03-02', 'seat_runout'), // no limit for seat runout: not judged
+			// A position with only readings that have no limits is not judged, so not counted (as rates).
+			reading(3, 'exhaust', 0.2, '2026-03-02', 'seat_runout')
 		]);
 	});
 });
@@ -48,7 +50,7 @@ describe('positions outside limits as received', () => {
 		expect(await side('intake')).toMatchObject({ positions: 2, failing: 1, share: 0.5 });
 		expect(await side('exhaust')).toMatchObject({ positions: 1, failing: 0, share: 0 });
 		const f = await figures();
-		expect(f.readingsStored).toBe(4);
+		expect(f.readingsStored).toBe(5);
 		// Wilson (1927) 95 % interval for 1 of 2, worked by hand from the formula: centre 0.5,
 		// half-width 1.96·√(0.25/2 + 3.8416/16)/(1 + 3.8416/2) = 0.4055, so 0.0945 to 0.9055 (the same as
 		// R's prop.test(1, 2, correct = FALSE), from memory).

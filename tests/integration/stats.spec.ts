@@ -145,7 +145,9 @@ describe('distribution', () => {
 		expect(d.histogram).toEqual(histogramSorted(V));
 		// Limits in force today: the 0.09 version; 0.095 and 0.15 are above it.
 		expect(d.limits).toEqual({ min: null, max: 0.09, effectiveFrom: '2026-02-01' });
-		expect(d.outside).toEqual({ below: 0, above: 2, judged: 10, share: 0.2 });
+		expect(d.outsideAsOf).toEqual({ below: 0, above: 2, judged: 10, share: 0.2 });
+		// By the limits of each reading's day: 0.095 was read in January, under the 0.10 version.
+		expect(d.outside).toEqual({ below: 0, above: 1, judged: 10, share: 0.1 });
 		expect(JSON.stringify(d)).not.toMatch(/NaN|Infinity/);
 	});
 

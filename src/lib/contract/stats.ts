@@ -47,14 +47,20 @@ const summaryShape = {
 	histogram: z.array(HistogramBin).meta({ description: 'Freedman–Diaconis bins, 5–60 of them.' })
 };
 
+const ReadingsOutside = z.strictObject({ below: count, above: count, judged: count, share: maybe });
+
 export const DistributionSummary = named(
 	'DistributionSummary',
 	z.strictObject({
 		...summaryShape,
 		limits: LimitInfo.nullable().meta({ description: 'The limits in force on `limitsAsOf`, when the selection is one family, side and stage.' }),
-		outside: z
-			.strictObject({ below: count, above: count, judged: count, share: maybe })
-			.meta({ description: 'Readings outside the limits in force on `limitsAsOf` of their own family × side × stage; `judged` counts the readings that had limits.' })
+		outside: ReadingsOutside.meta({
+			description:
+				'Readings outside the limit version in force on the day each was measured (the failure question), of their own family × side × stage; `judged` counts the readings measured on a day with limits. These are readings: /stats/rates counts valve positions (a position fails when any of its readings is outside), the same numbers wherever a position has one reading of the selection, as every measurement but a repeated seal test has.'
+		}),
+		outsideAsOf: ReadingsOutside.meta({
+			description: 'The same readings against the limits in force on `limitsAsOf` (today unless `to` is given), the limits the charts draw: a separate question, not a failure share.'
+		})
 	})
 );
 export type DistributionSummary = z.output<typeof DistributionSummary>;

@@ -223,7 +223,7 @@ export const OPENAPI = {
 				tag: 'Statistics',
 				query: distributionQuerySchema as unknown as ZodObjectLike,
 				example: 'measurement=clearance&family=ALDER-4&side=exhaust&stage=as_received',
-				responses: { '200': answer(DistributionResponse, 'n, mean, sd, quantiles, MAD, fences, histogram, limits in force and the share outside them.'), '404': noFamily }
+				responses: { '200': answer(DistributionResponse, 'n, mean, sd, quantiles, MAD, fences, histogram, the limits in force on limitsAsOf, the readings outside the limits of their own day (outside) and, separately, outside the limits in force on limitsAsOf (outsideAsOf).'), '404': noFamily }
 			})
 		},
 		'/api/v1/stats/compare': {

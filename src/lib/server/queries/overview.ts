@@ -74,7 +74,9 @@ export async function failingPositions(conn: Conn, shopId: string): Promise<Fail
 			select r.head_id, r.cylinder, r.series_key & 1 as exhaust, r.valve,
 				bool_or(r.value < coalesce(lv.min, '-Infinity') or r.value > coalesce(lv.max, 'Infinity')) as out
 			from readings r
-			left join lv on lv.family_id = r.family_id and lv.series_key = r.series_key
+			-- A reading measured before its family × series had any limits is not judged, and its
+			-- position not counted: the same positions as the rates answer (stats/rates).
+			join lv on lv.family_id = r.family_id and lv.series_key = r.series_key
 				and lv.effective_from <= r.measured_at::date and (lv.effective_to is null or lv.effective_to > r.measured_at::date)
 			where r.shop_id = ${shopId} and r.series_key = any(${sql.param(AS_RECEIVED_KEYS)}::smallint[])
 			group by 1, 2, 3, 4
