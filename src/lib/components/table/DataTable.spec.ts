@@ -3,7 +3,7 @@
 import { render } from 'svelte/server';
 import { describe, expect, it } from 'vitest';
 import DataTable from './DataTable.svelte';
-import { sortParam, sortingFrom, type DataColumn } from './columns';
+import { folding, sortParam, sortingFrom, type DataColumn } from './columns';
 
 type Row = { serial: string; value: number | null; at: Date };
 const rows: Row[] = [
@@ -66,6 +66,33 @@ describe('DataTable', () => {
 	it('links the first cell of a row to its page, and says so when empty', () => {
 		expect(html({ rowHref: (r: Row) => `/heads/${r.serial}` })).toContain('href="/heads/A-1"');
 		expect(html({ rows: [] })).toContain('Nothing to show.');
+	});
+
+	it('folds marked columns into a detail panel below their width, and abbreviates a header with its tooltip', () => {
+		const folded: DataColumn<Row>[] = [
+			columns[0],
+			{ ...columns[1], short: 'Val.' },
+			{ ...columns[2], detail: '5xl' }
+		];
+		const out = html({ columns: folded });
+		// The table measures its own width; the folded column's cells hide below 64rem.
+		expect(out).toMatch(/class="overflow-x-auto @container"/);
+		expect(out).toMatch(/<th[^>]*class="[^"]*@max-5xl:hidden[^"]*"[^>]*>(<!--[^>]*-->|\s)*Measured/);
+		// One toggle a row, for the panel, gone once the table is wide enough.
+		expect(out.match(/data-testid="row-detail-toggle"/g)).toHaveLength(4);
+		expect(out).toMatch(/<th scope="col" class="[^"]*@5xl:hidden[^"]*">(<!--[^>]*-->)*<span class="sr-only">Details<\/span><\/th>/);
+		expect(out).toContain('aria-expanded="false"');
+		expect(out).toContain('<span title="Value" aria-hidden="true">Val.</span><span class="sr-only">Value</span>');
+		// Without folded columns: no toggle column and no container query.
+		expect(html({})).not.toContain('row-detail-toggle');
+		expect(html({})).not.toContain('@container');
+	});
+
+	it('works out the toggle column from the widest folded column', () => {
+		expect(folding([{}, {}])).toBeNull();
+		expect(folding([{ detail: '3xl' }, { detail: '5xl' }])).toEqual({ hidden: '@5xl:hidden', measured: true });
+		expect(folding([{ detail: 'always' }])).toEqual({ hidden: '', measured: false });
+		expect(folding([{ detail: 'always' }, { detail: '4xl' }])).toEqual({ hidden: '', measured: true });
 	});
 
 	it('reads and writes sort parameters', () => {
