@@ -1,14 +1,13 @@
 // Inputs of families, limit versions, seal pass marks and the gauge register.
 import { z } from 'zod';
 import { calendarDay, text } from './text';
+import { readTypedNumber, typedNumber } from './numbers';
 import { MEASUREMENTS, STAGES } from '$lib/measurements';
 
 const day = calendarDay();
-const decimalText = text()
-	.trim()
-	.max(20, 'That is too long for a number.')
-	.refine((s) => s === '' || /^(\d+([.,]\d*)?|[.,]\d+)$/.test(s), 'Type a number with digits and one decimal point.')
-	.transform((s) => (s === '' ? null : Number(s.replace(',', '.'))));
+/** Largest plausible limit by unit: beyond it a text's reading is a slip (so "7,062" mm is 7.062). */
+const LIMIT_MAX = { mm: 100, in: 4, um: 1000, uin: 40_000, pct: 100, s: 3600 } as const;
+const limitText = text().trim().max(24, 'That is too long for a number.');
 const count = (what: string, lo: number, hi: number) =>
 	z.coerce.number({ message: `Type the number of ${what}.` }).int(`Whole ${what} only.`).min(lo, `At least ${lo}.`).max(hi, `At most ${hi}.`);
 
@@ -21,8 +20,8 @@ export const familySchema = z.object({
 	intakeValves: count('intake valves per cylinder', 1, 3),
 	exhaustValves: count('exhaust valves per cylinder', 1, 3),
 	stemUnit: z.enum(['mm', 'in'], { message: 'Choose mm or in.' }),
-	intakeStem: decimalText,
-	exhaustStem: decimalText,
+	intakeStem: typedNumber({ max: 100, what: 'the intake stem diameter' }),
+	exhaustStem: typedNumber({ max: 100, what: 'the exhaust stem diameter' }),
 	copyFrom: z.union([z.literal(''), z.uuid({ message: 'Unknown family.' })]).default('')
 });
 
@@ -32,14 +31,26 @@ export const limitSchema = z
 		measurement: z.enum(MEASUREMENTS, { message: 'Choose a measurement.' }),
 		side: z.enum(['intake', 'exhaust', 'both'], { message: 'Choose intake, exhaust or both.' }),
 		unit: z.enum(['mm', 'in', 'um', 'uin', 'pct', 's'], { message: 'Choose a unit.' }),
-		min: decimalText,
-		max: decimalText,
+		min: limitText,
+		max: limitText,
 		effectiveFrom: day,
 		note: text(undefined, { multiline: true }).trim().max(200, 'At most 200 characters.').default('')
 	})
+	.transform((v, ctx) => {
+		const most = LIMIT_MAX[v.unit];
+		const min = readTypedNumber(v.min, { max: most, what: 'the minimum' }, ctx, ['min']);
+		const max = readTypedNumber(v.max, { max: most, what: 'the maximum' }, ctx, ['max']);
+		return { ...v, min: min ?? null, max: max ?? null, bad: min === undefined || max === undefined };
+	})
 	.superRefine((v, ctx) => {
+		if (v.bad) return;
 		if (v.min === null && v.max === null) ctx.addIssue({ code: 'custom', path: ['min'], message: 'Give a minimum, a maximum or both.' });
 		if (v.min !== null && v.max !== null && v.min > v.max) ctx.addIssue({ code: 'custom', path: ['max'], message: 'The maximum must not be below the minimum.' });
+	})
+	.transform((v) => {
+		const { bad, ...limit } = v;
+		void bad;
+		return limit;
 	});
 
 export const sealPassSchema = z.object({
@@ -63,7 +74,7 @@ export const instrumentSchema = z.object({
 	name: text().trim().min(1, 'Name the gauge.').max(120, 'At most 120 characters.'),
 	kind: z.enum(Object.keys(INSTRUMENT_KIND_LABEL) as [string, ...string[]], { message: 'Choose a kind.' }),
 	serial: text().trim().min(1, 'Type the gauge’s serial number.').max(64, 'At most 64 characters.'),
-	resolution: decimalText,
+	resolution: typedNumber({ max: 100, what: 'the resolution' }),
 	resolutionUnit: z.enum(['mm', 'in', 'um'], { message: 'Choose mm, in or µm.' }),
 	calibratedOn: day,
 	intervalDays: z.coerce.number({ message: 'Type the interval in days.' }).int('Whole days.').min(1, 'At least 1 day.').max(3650, 'At most 3650 days.')

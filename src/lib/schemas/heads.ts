@@ -1,6 +1,7 @@
 // Inputs of the head workflow: the list's query string, intake, decisions, release, comebacks.
 import { z } from 'zod';
 import { calendarDay, text } from './text';
+import { readTypedNumber, typedNumber } from './numbers';
 import { DECISION_KINDS, DISTANCE_UNITS, PRESSURE_UNITS } from '$lib/measurements';
 import { parsePosKey } from '$lib/inspection';
 
@@ -24,12 +25,15 @@ export { DECISION_KINDS };
 
 const day = calendarDay();
 const uuid = (message: string) => z.uuid({ message });
-/** A decimal as typed: digits with one point or comma; empty means "not given". */
-const decimalText = text()
-	.trim()
-	.max(20, 'That is too long for a number.')
-	.refine((s) => s === '' || /^(\d+([.,]\d*)?|[.,]\d+)$/.test(s), 'Type a number with digits and one decimal point.')
-	.transform((s) => (s === '' ? null : Number(s.replace(',', '.'))));
+/** Most a mileage or an hour meter can show, by unit (a typing slip beyond). */
+const USAGE_MAX = { km: 5_000_000, mi: 3_100_000, h: 500_000 } as const;
+const USAGE_WHAT = { km: 'mileage', mi: 'mileage', h: 'engine hours' } as const;
+/** Mileage or hours as typed ("142,350", "142 350"): whole, not negative, at most USAGE_MAX. */
+const usageText = text().trim().max(24, 'That is too long for a number.');
+function usageNumber<T extends { usage: string; usageUnit: keyof typeof USAGE_MAX }>(v: T, ctx: z.RefinementCtx) {
+	const usage = readTypedNumber(v.usage, { whole: true, max: USAGE_MAX[v.usageUnit], what: USAGE_WHAT[v.usageUnit] }, ctx, ['usage']);
+	return { ...v, usage: usage ?? null };
+}
 
 export const headFilterSchema = z.object({
 	q: text('q').trim().max(100, 'q is at most 100 characters').optional(),
@@ -65,23 +69,18 @@ export const intakeSchema = z
 			.transform((s) => (s === '' ? null : s)),
 		receivedOn: day,
 		usageUnit: z.enum([...DISTANCE_UNITS, 'h'], { message: 'Choose km, miles or hours.' }),
-		usage: decimalText,
+		usage: usageText,
 		complaint: text(undefined, { multiline: true }).trim().max(2000, 'At most 2000 characters.').default(''),
 		leakMode: z.enum(['pct', 'pressure'], { message: 'Choose how the leakage was written down.' }),
 		pressureUnit: z.enum(PRESSURE_UNITS, { message: 'Choose the gauge’s pressure unit.' })
 	})
-	.superRefine((v, ctx) => {
-		if (v.usage !== null) {
-			const max = v.usageUnit === 'h' ? 500_000 : v.usageUnit === 'mi' ? 3_100_000 : 5_000_000;
-			if (v.usage > max) ctx.addIssue({ code: 'custom', path: ['usage'], message: `That is more than ${max.toLocaleString('en-US')} ${v.usageUnit === 'mi' ? 'miles' : v.usageUnit}.` });
-		}
-	});
+	.transform(usageNumber);
 export type IntakeInput = z.infer<typeof intakeSchema>;
 
 export const leakRowSchema = z.object({
-	pct: decimalText.refine((n) => n === null || n <= 100, 'Leakage is a share: 0 to 100 %.'),
-	pin: decimalText,
-	held: decimalText,
+	pct: typedNumber({ max: 100, what: 'leakage (a share: 0 to 100 %)' }),
+	pin: typedNumber({ max: 100_000, what: 'the applied pressure' }),
+	held: typedNumber({ max: 100_000, what: 'the held pressure' }),
 	path: z.enum(LEAK_PATHS, { message: 'Choose where the leak was heard.' })
 });
 
@@ -106,10 +105,8 @@ export const comebackSchema = z
 	.object({
 		returnedOn: day,
 		usageUnit: z.enum([...DISTANCE_UNITS, 'h'], { message: 'Choose km, miles or hours.' }),
-		usage: decimalText,
+		usage: usageText,
 		whatFailed: text(undefined, { multiline: true }).trim().min(3, 'Say what failed (a few words at least).').max(2000, 'At most 2000 characters.'),
 		positions: z.array(posKey).max(48)
 	})
-	.superRefine((v, ctx) => {
-		if (v.usage !== null && v.usage > 5_000_000) ctx.addIssue({ code: 'custom', path: ['usage'], message: 'That is too far.' });
-	});
+	.transform(usageNumber);
