@@ -1,6 +1,6 @@
-import { and, desc, eq, gte, lt, sql, type SQL } from 'drizzle-orm';
+import { and, desc, eq, getTableColumns, gte, lt, sql, type SQL } from 'drizzle-orm';
 import type { Conn } from '../db/scope';
-import { auditLog } from '../db/schema';
+import { auditLog, users } from '../db/schema';
 
 export type AuditAction = 'create' | 'update' | 'delete' | 'undo' | 'override' | 'revoke' | 'import';
 
@@ -42,14 +42,19 @@ export async function listAudit(conn: Conn, shopId: string, f: AuditFilter) {
 	const where: SQL[] = [eq(auditLog.shopId, shopId)];
 	if (f.entity) where.push(eq(auditLog.entity, f.entity));
 	if (f.action) where.push(eq(auditLog.action, f.action));
-	if (f.actor) where.push(sql`${auditLog.actorLabel} ilike ${'%' + f.actor.replace(/[%_\\]/g, '\\$&') + '%'}`);
+	if (f.actor) {
+		const like = '%' + f.actor.replace(/[%_\\]/g, '\\$&') + '%';
+		where.push(sql`(${auditLog.actorLabel} ilike ${like} or ${users.name} ilike ${like})`);
+	}
 	if (f.from) where.push(gte(auditLog.at, new Date(f.from)));
 	if (f.to) where.push(lt(auditLog.at, sql`${f.to}::date + 1`));
 	const pageSize = f.pageSize ?? 50;
 	const page = Math.max(1, f.page ?? 1);
+	// The actor's name as it is now (a person's label was their e-mail when some entries were written).
 	const rows = await conn
-		.select()
+		.select({ ...getTableColumns(auditLog), actorName: users.name })
 		.from(auditLog)
+		.leftJoin(users, eq(users.id, auditLog.actorUserId))
 		.where(and(...where))
 		.orderBy(desc(auditLog.at), desc(auditLog.id))
 		.limit(pageSize + 1)

@@ -1,0 +1,72 @@
+// Numbers as a hurried person types them, in a real browser: a mileage with a thousands comma,
+// a negative one, and a limit typed in inches with a decimal comma; then the audit trail's
+// sentence for that limit.
+import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
+import type { Browser } from 'playwright-core';
+import { launch, shot, signInWithPassword } from '../helpers/browser';
+
+const baseURL = inject('baseURL');
+const serial = `TYPED-${Date.now().toString(36).toUpperCase()}`;
+let browser: Browser;
+
+beforeAll(async () => {
+	browser = await launch();
+});
+afterAll(async () => {
+	await browser?.close();
+});
+
+describe('numbers as typed', () => {
+	it('refuses a negative mileage in words, keeps the text, and reads "142,350" miles as 229,090 km', async () => {
+		const page = await browser.newPage({ viewport: { width: 1024, height: 768 } });
+		await signInWithPassword(page, baseURL, 'machinist@brackenford.example', 'brackenford-machinist-demo');
+		await page.goto(`${baseURL}/heads/new`);
+		await page.getByLabel('Serial or casting number').fill(serial);
+		const family = await page.locator('#familyId option', { hasText: 'CEDAR-V8' }).getAttribute('value');
+		await page.locator('#familyId').selectOption(family!);
+		await page.getByLabel('Customer', { exact: true }).fill('Invented Typing Garage');
+		await page.locator('#usageUnit').selectOption('mi');
+		await page.locator('#usage').fill('−100');
+		await page.getByRole('button', { name: 'Take in the head' }).click();
+		await page.getByText('Mileage cannot be negative.').waitFor();
+		expect(await page.locator('#usage').inputValue()).toBe('−100');
+
+		await page.locator('#usage').fill('142,350');
+		await page.locator('#usageUnit').selectOption('mi');
+		await page.getByRole('button', { name: 'Take in the head' }).click();
+		await page.waitForURL(/\/heads\/[0-9a-f-]{36}\?taken=1$/);
+		// 142,350 miles × 1.609344 = 229,090.1 km, kept to the km.
+		await page.getByText('229,090 km').waitFor();
+		await shot(page, 'typed-01-mileage');
+		await page.close();
+	});
+
+	it('takes a limit typed "0,0045" in inches and words it in the audit trail', async () => {
+		const page = await browser.newPage({ viewport: { width: 1024, height: 768 } });
+		await signInWithPassword(page, baseURL, 'engineer@brackenford.example', 'brackenford-engineer-demo');
+		await page.goto(`${baseURL}/families`);
+		await page.getByRole('link', { name: 'ALDER-4' }).first().click();
+		await page.waitForURL(/\/families\/[0-9a-f-]{36}/);
+		await page.locator('#stage').selectOption('final');
+		await page.locator('#measurement').selectOption('seat_runout');
+		await page.locator('#side').selectOption('exhaust');
+		await page.locator('#max').fill('0,0045');
+		await page.locator('#unit').selectOption('in');
+		// Far in the future, so that no figure of today moves for the other tests.
+		await page.locator('#effectiveFrom').fill('2999-12-31');
+		await page.getByRole('button', { name: 'Save the version' }).click();
+		await page.getByText('New limit version from 2999-12-31 saved.').waitFor();
+
+		await page.goto(`${baseURL}/audit?entity=limit`);
+		const first = page.getByTestId('audit-sentence').first();
+		// 0.0045 in × 25.4 = 0.1143 mm.
+		// Named by the person's name, not the e-mail kept as the entry's label.
+		const sentence = (await first.textContent()) ?? '';
+		expect(sentence.startsWith('engineer@')).toBe(false);
+		expect(sentence).toMatch(/^\S+ \S+ set the final exhaust seat runout \(TIR\) limit of ALDER-4 to at most 0\.114 mm, typed at most 0\.0045 in, effective 31 Dec 2999\.$/);
+		await page.getByText('As recorded: limit · create').first().click();
+		await page.getByText('"max":0.0045', { exact: false }).first().waitFor();
+		await shot(page, 'typed-02-audit');
+		await page.close();
+	});
+});
