@@ -3,6 +3,7 @@
 import { describe, expect, inject, it } from 'vitest';
 import { sharedBrowser, shot, signInWithPassword } from '../helpers/browser';
 import { firstLink, waitForMail } from '../helpers/mail';
+import { listFakeMail } from '../../src/lib/server/mail/fake-inbox';
 import { uniqueEmail } from '../helpers/people';
 
 const baseURL = inject('baseURL');
@@ -67,6 +68,10 @@ describe('signing in and out', () => {
 		await owner.getByRole('button', { name: 'Send invitation' }).click();
 		await owner.getByText(`Invitation sent to ${email}.`).waitFor();
 		await shot(owner, 'auth-03-invitation-sent');
+		// A second invitation while the first is open is refused, saying why (in any case of the address).
+		await owner.locator('#invite-email').fill(email.toUpperCase());
+		await owner.getByRole('button', { name: 'Send invitation' }).click();
+		await owner.getByText(`${email} was already invited (machinist) and has not answered yet. Withdraw that invitation below to send a new one.`).waitFor();
 		const link = firstLink(await waitForMail(email, /invited/, since));
 
 		const ctx = await shared.browser.newContext();
@@ -90,6 +95,14 @@ describe('signing in and out', () => {
 
 		await owner.goto(`${baseURL}/settings/members`);
 		await owner.getByRole('cell', { name: email, exact: true }).waitFor();
+		// Now a member: inviting them again says so and sends nothing.
+		const invitesTo = async () => (await listFakeMail(process.env.LAPMARK_MAIL_DIR!)).filter((m) => m.to.includes(email) && /invited/.test(m.subject)).length;
+		const before = await invitesTo();
+		await owner.locator('#invite-email').fill(email);
+		await owner.getByRole('button', { name: 'Send invitation' }).click();
+		await owner.getByText(`${email} is already a member of this shop (machinist). Change their role in the list below instead.`).waitFor();
+		expect(await owner.locator('#invite-email').inputValue()).toBe(email);
+		expect(await invitesTo()).toBe(before);
 		await owner.close();
 	});
 });

@@ -12,6 +12,17 @@ export async function listMembers(conn: Conn, shopId: string) {
 		.orderBy(asc(users.email));
 }
 
+/** The role of the member with this e-mail (any case), or null when none is. */
+export async function memberRoleByEmail(conn: Conn, shopId: string, email: string): Promise<Role | null> {
+	const [row] = await conn
+		.select({ role: memberships.role })
+		.from(memberships)
+		.innerJoin(users, eq(users.id, memberships.userId))
+		.where(and(eq(memberships.shopId, shopId), sql`lower(${users.email}) = lower(${email})`))
+		.limit(1);
+	return row?.role ?? null;
+}
+
 export async function memberRole(conn: Conn, shopId: string, userId: string): Promise<Role | null> {
 	const [row] = await conn
 		.select({ role: memberships.role })

@@ -16,6 +16,7 @@ import {
 	createInvitation,
 	listMembers,
 	memberRole,
+	memberRoleByEmail,
 	otherOwners,
 	pendingInvitations,
 	removeMember,
@@ -36,16 +37,22 @@ export function membersOfShop(actor: Owner) {
 }
 
 /** Invites `email` with `role` and mails the link after the commit. `failed`: why the mail
- * could not be sent yet (the outbox retries it), or null when it went. */
-export async function inviteMember(actor: Owner, email: string, role: Role): Promise<{ failed: string | null }> {
+ * could not be sent yet (the outbox retries it), or null when it went. Someone already a member,
+ * or already invited and not yet answered, is not invited again: `refused` says why. */
+export async function inviteMember(actor: Owner, email: string, role: Role): Promise<{ failed: string | null; refused?: string }> {
 	const secret = newSecret();
 	const url = `${publicOrigin}/invite/${secret}`;
-	const mailId = await inShop(actor.shopId, async (tx) => {
+	const outcome = await inShop(actor.shopId, async (tx) => {
+		const member = await memberRoleByEmail(tx, actor.shopId, email);
+		if (member) return { refused: `${email} is already a member of this shop (${member}). Change their role in the list below instead.` };
+		const open = (await pendingInvitations(tx, actor.shopId)).find((i) => i.email.toLowerCase() === email.toLowerCase());
+		if (open) return { refused: `${email} was already invited (${open.role}) and has not answered yet. Withdraw that invitation below to send a new one.` };
 		const inv = await createInvitation(tx, { shopId: actor.shopId, email, role, tokenHash: sha256Hex(secret), invitedBy: actor.userId });
 		await audit(tx, actor.shopId, who(actor), { entity: 'invitation', entityId: inv.id, action: 'create', after: { email, role } });
-		return queueMail(tx, { to: email, shopId: actor.shopId, ...invitationMail(actor.shopName, role, url) });
+		return { mailId: await queueMail(tx, { to: email, shopId: actor.shopId, ...invitationMail(actor.shopName, role, url) }) };
 	});
-	const sent = await deliverQueued([mailId]);
+	if ('refused' in outcome) return { failed: null, refused: outcome.refused };
+	const sent = await deliverQueued([outcome.mailId]);
 	return { failed: sent.failed ? sent.errors[0] : null };
 }
 

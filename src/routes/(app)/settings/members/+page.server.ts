@@ -20,7 +20,8 @@ export const actions: Actions = {
 		const parsed = inviteSchema.safeParse(form);
 		if (!parsed.success) return fail(400, { action: 'invite', values: { email: String(form.email ?? '').slice(0, 254), role: String(form.role ?? '') }, errors: fieldErrors(parsed.error) });
 		const { email, role } = parsed.data;
-		const { failed } = await inviteMember(actor, email, role);
+		const { failed, refused } = await inviteMember(actor, email, role);
+		if (refused) return fail(409, { action: 'invite', values: { email, role }, errors: { email: refused } });
 		return {
 			action: 'invite',
 			ok: true,
