@@ -1,6 +1,6 @@
-// Numbers as a hurried person types them, in a real browser: a mileage with a thousands comma,
-// a negative one, and a limit typed in inches with a decimal comma; then the audit trail's
-// sentence for that limit.
+// What a hurried person does, in a real browser: a mileage with a thousands comma, a negative
+// one, a limit typed in inches; the audit trail's sentence for that limit; a new API token
+// copied with one click and used.
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import type { Browser } from 'playwright-core';
 import { launch, shot, signInWithPassword } from '../helpers/browser';
@@ -68,5 +68,23 @@ describe('numbers as typed', () => {
 		await page.getByText('"max":0.0045', { exact: false }).first().waitFor();
 		await shot(page, 'typed-02-audit');
 		await page.close();
+	});
+
+	it('copies a new API token with one click, and the copy works against the API', async () => {
+		const ctx = await browser.newContext({ viewport: { width: 1024, height: 768 }, permissions: ['clipboard-read', 'clipboard-write'] });
+		const page = await ctx.newPage();
+		await signInWithPassword(page, baseURL, 'engineer@brackenford.example', 'brackenford-engineer-demo');
+		await page.goto(`${baseURL}/settings/tokens`);
+		await page.getByLabel('Name (what it is for)').fill(`copy test ${serial}`);
+		await page.getByRole('button', { name: 'Create token' }).click();
+		await page.getByTestId('copy-token').click();
+		await page.getByText('Copied to the clipboard.').waitFor();
+		const shown = await page.getByTestId('new-token').inputValue();
+		const copied = await page.evaluate(() => navigator.clipboard.readText());
+		expect(copied).toBe(shown);
+		expect(copied).toMatch(/^lmk_[A-Za-z0-9_-]{40}$/);
+		const res = await fetch(`${baseURL}/api/v1/families`, { headers: { authorization: `Bearer ${copied}` } });
+		expect(res.status).toBe(200);
+		await ctx.close();
 	});
 });
