@@ -57,6 +57,21 @@ describe('numbers as typed', () => {
 		await page.getByRole('button', { name: 'Save the version' }).click();
 		await page.getByText('New limit version from 2999-12-31 saved.').waitFor();
 
+		// The limits table keeps its columns apart: the maximum's digits end well before the day starts.
+		const row = page.locator('[data-testid="limits"] tbody tr').first();
+		const [maxCell, sinceCell] = [row.locator('td').nth(4), row.locator('td').nth(5)];
+		const text = await maxCell.evaluate((td) => {
+			const r = document.createRange();
+			r.selectNodeContents(td);
+			return r.getBoundingClientRect().right;
+		});
+		const since = await sinceCell.evaluate((td) => {
+			const r = document.createRange();
+			r.selectNodeContents(td);
+			return r.getBoundingClientRect().left;
+		});
+		expect(since - text).toBeGreaterThanOrEqual(12);
+
 		await page.goto(`${baseURL}/audit?entity=limit`);
 		const first = page.getByTestId('audit-sentence').first();
 		// 0.0045 in × 25.4 = 0.1143 mm.
