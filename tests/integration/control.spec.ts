@@ -138,6 +138,22 @@ describe('recompute from … to …', () => {
 	});
 });
 
+describe('the latest readings charted', () => {
+	it('limit=3 charts the last three readings in time order with their head, and counts all 1,200', async () => {
+		// Readings 1197, 1198 and 1199: 2025-02-19 21:00, 22:00 and 23:00 UTC; 7i mod 13 = 7, 1 and 8.
+		const c = await inA((t) => control(t, shopA, { ...Q, limit: 3 }));
+		expect([c.n, c.total]).toEqual([3, 1200]);
+		expect(c.points.map((p) => [p.t, p.value, p.serial])).toEqual([
+			['2025-02-19T21:00:00.000Z', 0.047, 'C-1'],
+			['2025-02-19T22:00:00.000Z', 0.041, 'C-1'],
+			['2025-02-19T23:00:00.000Z', 0.048, 'C-1']
+		]);
+		// A filter on the heads counts in the total as in the points: no head of that customer.
+		const none = await inA((t) => control(t, shopA, { ...Q, limit: 3, customer: 'Nobody Ltd' }));
+		expect([none.n, none.total, none.points]).toEqual([0, 0, []]);
+	});
+});
+
 describe('monthly tallies of positions outside the limits of their day (p-chart)', () => {
 	it('counts each position once, in the month of its first reading, judged by the version of each reading’s day', async () => {
 		await inA(async (t) => {

@@ -70,8 +70,16 @@ export function needsReadings(sel: Selection): boolean {
 
 /** Filters on readings `r` (and its head), for the selection, optionally within `ranges`. */
 export function readingsWhere(shopId: string, sel: Selection, ranges?: readonly DayRange[]): SQL {
-	const parts: SQL[] = [sql`r.shop_id = ${shopId}`, sql`r.series_key = any(${sql.param(sel.keys)}::int2[])`];
-	if (sel.familyIds) parts.push(sql`r.family_id = any(${sql.param(sel.familyIds)}::uuid[])`);
+	// One series (one family) as a plain equality, not `= any` of a one-element array: then
+	// readings_series_idx gives the readings in time order, and the latest n are read backwards
+	// off it without sorting the whole selection (the control chart).
+	const parts: SQL[] = [
+		sql`r.shop_id = ${shopId}`,
+		sel.keys.length === 1 ? sql`r.series_key = ${sel.keys[0]}::int2` : sql`r.series_key = any(${sql.param(sel.keys)}::int2[])`
+	];
+	if (sel.familyIds) {
+		parts.push(sel.familyIds.length === 1 ? sql`r.family_id = ${sel.familyIds[0]}::uuid` : sql`r.family_id = any(${sql.param(sel.familyIds)}::uuid[])`);
+	}
 	if (sel.from) parts.push(sql`r.measured_at >= ${stamp(sel.from)}::timestamptz`);
 	if (sel.to) parts.push(sql`r.measured_at < ${stamp(addDays(sel.to, 1))}::timestamptz`);
 	if (ranges) {
