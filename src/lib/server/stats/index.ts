@@ -100,3 +100,4 @@ export {
 	type RobustSummary,
 	type ValueCount
 } from './frequency';
+export * from './baseline';
