@@ -3,3 +3,4 @@
 export * from './days';
 export * from './robust';
 export * from './control-rules';
+export * from './usual-range';
