@@ -4,3 +4,4 @@ export * from './days';
 export * from './robust';
 export * from './control-rules';
 export * from './suspect';
+export * from './usual-range';
