@@ -40,17 +40,16 @@ export const limitSchema = z
 		const most = LIMIT_MAX[v.unit];
 		const min = readTypedNumber(v.min, { max: most, what: 'the minimum' }, ctx, ['min']);
 		const max = readTypedNumber(v.max, { max: most, what: 'the maximum' }, ctx, ['max']);
-		return { ...v, min: min ?? null, max: max ?? null, bad: min === undefined || max === undefined };
-	})
-	.superRefine((v, ctx) => {
-		if (v.bad) return;
-		if (v.min === null && v.max === null) ctx.addIssue({ code: 'custom', path: ['min'], message: 'Give a minimum, a maximum or both.' });
-		if (v.min !== null && v.max !== null && v.min > v.max) ctx.addIssue({ code: 'custom', path: ['max'], message: 'The maximum must not be below the minimum.' });
-	})
-	.transform((v) => {
-		const { bad, ...limit } = v;
-		void bad;
-		return limit;
+		if (min === undefined || max === undefined) return z.NEVER;
+		if (min === null && max === null) {
+			ctx.addIssue({ code: 'custom', path: ['min'], message: 'Give a minimum, a maximum or both.' });
+			return z.NEVER;
+		}
+		if (min !== null && max !== null && min > max) {
+			ctx.addIssue({ code: 'custom', path: ['max'], message: 'The maximum must not be below the minimum.' });
+			return z.NEVER;
+		}
+		return { ...v, min, max };
 	});
 
 export const sealPassSchema = z.object({

@@ -2,7 +2,7 @@
 // limit of ALDER-4 from at most 0.120 to at most 0.110 mm, effective 2 Dec 2026"). The entry's
 // before and after stay as they were written; this only words them, and anything it does not
 // know is worded plainly from the kind of record and the change.
-import { DECISION_LABEL, MEASUREMENTS, MEASUREMENT_INFO, type DecisionKind, type Measurement } from '../../measurements';
+import { DECISION_LABEL, MEASUREMENTS, MEASUREMENT_INFO, UNIT_LABEL, type DecisionKind, type Measurement, type Unit } from '../../measurements';
 import { STATUS_LABEL } from '../../schemas/heads';
 import { count, fmtLimits, fmtWithUnit } from '../../format';
 
@@ -84,13 +84,15 @@ function valueText(m: unknown, v: unknown): string {
 	return isMeasurement(m) ? fmtWithUnit(m, x) : String(x);
 }
 
+const unitWord = (u: string) => UNIT_LABEL[u as Unit] ?? u;
+
 /** "as typed: 0.0043 in" when the value was typed in another unit than it is kept in. */
 function typedText(m: unknown, typed: unknown): string {
 	const t = bag(typed);
 	const unit = str(t.unit);
 	const text = str(t.text);
 	if (!unit || !text || !isMeasurement(m) || unit === MEASUREMENT_INFO[m].unit) return '';
-	return ` (typed ${text} ${unit === 'uin' ? 'µin' : unit})`;
+	return ` (typed ${text} ${unitWord(unit)})`;
 }
 
 function readingSentence(who: string, action: string, b: Bag, a: Bag, bore = false): string {
@@ -126,7 +128,7 @@ export function auditSentence(e: AuditEntryLike): string {
 			const typedOf = (v: unknown) => str(v) ?? (num(v) === null ? null : String(v));
 			const [tMin, tMax] = [typedOf(t.min), typedOf(t.max)];
 			const typedRange = tMin && tMax ? `${tMin} – ${tMax}` : tMax ? `at most ${tMax}` : `at least ${tMin}`;
-			const typed = typedUnit && typedUnit !== canonical && (tMin || tMax) ? `, typed ${typedRange} ${typedUnit === 'uin' ? 'µin' : typedUnit}` : '';
+			const typed = typedUnit && typedUnit !== canonical && (tMin || tMax) ? `, typed ${typedRange} ${unitWord(typedUnit)}` : '';
 			if (e.action === 'update') return `${who} changed ${name} from ${limitsText(a.measurement, b)} to ${limitsText(a.measurement, a)}${typed}${effective}${note}.`;
 			return `${who} set ${name} to ${limitsText(a.measurement, a)}${typed}${effective}${note}.`;
 		}
